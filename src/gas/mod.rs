@@ -1,0 +1,416 @@
+//! Gas models: what a flow relation needs to know about the working fluid.
+//!
+//! A gas gives, for a static temperature, the specific heat `cp`, the specific
+//! enthalpy `h`, the entropy function `phi(T) = integral of cp/T dT`, the gas
+//! constant `R` and the ratio of specific heats `gamma`, inside a stated
+//! temperature range. Two kinds exist:
+//!
+//! * [`PerfectGas`]: calorically perfect, constant `gamma` and `R`
+//!   (`h = cp T`, `phi = cp ln T`). Closed forms in [`crate::flow`] use it.
+//! * [`Mixture`]: thermally perfect ideal-gas mixture of species described by
+//!   NASA Glenn 9-coefficient polynomials. The mixture's polynomial is the
+//!   mass-weighted sum of its species' coefficients, built once per
+//!   composition, so `cp`, `h` and `phi` each cost one polynomial.
+//!
+//! Invariants: every value is per unit mass (J/kg, J/kg/K); a temperature
+//! outside the model's range is an error ([`GasError::OutOfRange`]), never an
+//! extrapolation. Enthalpy of a mixture is the absolute NASA enthalpy
+//! (formation included); combustion balances use sensible enthalpy
+//! `h(T) - h(298.15 K)` (see [`Gas::sensible_h`]).
+
+mod mixture;
+mod nasa9_data;
+mod species;
+
+pub use mixture::{Mixture, Polynomial};
+pub use species::{Composition, Fuel, MixtureBuilder, Species, stoichiometric_far};
+
+use thiserror::Error;
+
+/// Universal gas constant, J/(kmol K): the exact SI value N_A k (also Cantera 3.2).
+pub const R_UNIVERSAL: f64 = 8314.462_618_153_24;
+/// Reference temperature of sensible enthalpy and heating values, K.
+pub const T_REFERENCE: f64 = 298.15;
+
+/// Errors of the gas models.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[non_exhaustive]
+pub enum GasError {
+    /// Temperature outside the range the model's data covers.
+    #[error(
+        "temperature {t:.2} K is outside the {model} range {min:.0} to {max:.0} K (no extrapolation)"
+    )]
+    OutOfRange {
+        /// The temperature asked for, K.
+        t: f64,
+        /// Lowest valid temperature, K.
+        min: f64,
+        /// Highest valid temperature, K.
+        max: f64,
+        /// The gas model's name.
+        model: &'static str,
+    },
+    /// A gas parameter that makes no physical sense.
+    #[error("{what} = {value} is not valid: {why}")]
+    BadParameter {
+        /// Which parameter.
+        what: &'static str,
+        /// Its value.
+        value: f64,
+        /// Why it is refused.
+        why: &'static str,
+    },
+    /// Fuel-air ratio above stoichiometric: lean-products model does not apply.
+    #[error(
+        "fuel-air ratio {far:.5} is above stoichiometric ({stoich:.5}); only lean combustion products are modelled"
+    )]
+    RichMixture {
+        /// Fuel-air ratio asked for.
+        far: f64,
+        /// The stoichiometric fuel-air ratio of this fuel.
+        stoich: f64,
+    },
+}
+
+/// What every gas model provides. Generic relations in [`crate::flow`] are
+/// written against this trait so they can be checked on a perfect gas against
+/// the closed forms.
+pub trait Thermo {
+    /// Specific gas constant, J/(kg K).
+    fn r(&self) -> f64;
+    /// Valid static temperature range, K.
+    fn range(&self) -> (f64, f64);
+    /// Specific heat at constant pressure, J/(kg K).
+    fn cp(&self, t: f64) -> Result<f64, GasError>;
+    /// Specific enthalpy, J/kg.
+    fn h(&self, t: f64) -> Result<f64, GasError>;
+    /// Entropy function phi(T) = integral of cp/T dT, J/(kg K).
+    fn phi(&self, t: f64) -> Result<f64, GasError>;
+    /// Ratio of specific heats at `t`.
+    fn gamma(&self, t: f64) -> Result<f64, GasError> {
+        let cp = self.cp(t)?;
+        Ok(cp / (cp - self.r()))
+    }
+    /// Enthalpy, cp and phi together (one range check, one polynomial pass).
+    fn state(&self, t: f64) -> Result<ThermoPoint, GasError> {
+        Ok(ThermoPoint {
+            cp: self.cp(t)?,
+            h: self.h(t)?,
+            phi: self.phi(t)?,
+        })
+    }
+}
+
+/// `cp`, `h` and `phi` at one temperature.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ThermoPoint {
+    /// J/(kg K).
+    pub cp: f64,
+    /// J/kg.
+    pub h: f64,
+    /// J/(kg K).
+    pub phi: f64,
+}
+
+/// Calorically perfect gas: constant `gamma` and `R`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PerfectGas {
+    gamma: f64,
+    r: f64,
+    cp: f64,
+}
+
+impl PerfectGas {
+    /// Air at the usual textbook values, gamma 1.4 and R 287.05 J/(kg K).
+    pub const AIR: PerfectGas = PerfectGas {
+        gamma: 1.4,
+        r: 287.05,
+        cp: 1.4 * 287.05 / 0.4,
+    };
+
+    /// A calorically perfect gas; gamma must exceed 1 and R be positive.
+    pub fn new(gamma: f64, r: f64) -> Result<Self, GasError> {
+        if !(gamma.is_finite() && gamma > 1.0 && gamma < 5.0) {
+            return Err(GasError::BadParameter {
+                what: "gamma",
+                value: gamma,
+                why: "the ratio of specific heats must lie between 1 and 5 (exclusive)",
+            });
+        }
+        if !(r.is_finite() && r > 0.0) {
+            return Err(GasError::BadParameter {
+                what: "gas constant R",
+                value: r,
+                why: "it must be positive, J/(kg K)",
+            });
+        }
+        Ok(PerfectGas {
+            gamma,
+            r,
+            cp: gamma * r / (gamma - 1.0),
+        })
+    }
+
+    /// The constant ratio of specific heats.
+    pub fn gamma_value(&self) -> f64 {
+        self.gamma
+    }
+    /// The constant specific heat, J/(kg K).
+    pub fn cp_value(&self) -> f64 {
+        self.cp
+    }
+}
+
+fn positive(t: f64) -> Result<f64, GasError> {
+    if t.is_finite() && t > 0.0 {
+        Ok(t)
+    } else {
+        Err(GasError::OutOfRange {
+            t,
+            min: 0.0,
+            max: f64::INFINITY,
+            model: "calorically perfect",
+        })
+    }
+}
+
+impl Thermo for PerfectGas {
+    fn r(&self) -> f64 {
+        self.r
+    }
+    fn range(&self) -> (f64, f64) {
+        (f64::MIN_POSITIVE, f64::INFINITY)
+    }
+    fn cp(&self, t: f64) -> Result<f64, GasError> {
+        positive(t)?;
+        Ok(self.cp)
+    }
+    fn h(&self, t: f64) -> Result<f64, GasError> {
+        Ok(self.cp * positive(t)?)
+    }
+    fn phi(&self, t: f64) -> Result<f64, GasError> {
+        Ok(self.cp * positive(t)?.ln())
+    }
+    fn gamma(&self, t: f64) -> Result<f64, GasError> {
+        positive(t)?;
+        Ok(self.gamma)
+    }
+}
+
+/// A gas of either kind, dispatched without dynamic allocation.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Gas {
+    /// Calorically perfect.
+    Perfect(PerfectGas),
+    /// Thermally perfect mixture.
+    Thermal(Mixture),
+}
+
+impl Gas {
+    /// Sensible enthalpy `h(T) - h(T_REFERENCE)`, J/kg.
+    pub fn sensible_h(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => Ok(g.cp * (positive(t)? - T_REFERENCE)),
+            Gas::Thermal(m) => Ok(m.h(t)? - m.h_reference()),
+        }
+    }
+
+    /// Short description for explanations ("calorically perfect, gamma 1.4").
+    pub fn describe(&self) -> String {
+        match self {
+            Gas::Perfect(g) => format!(
+                "calorically perfect gas, gamma {}, R {} J/(kg K)",
+                g.gamma, g.r
+            ),
+            Gas::Thermal(m) => format!(
+                "thermally perfect {} (NASA Glenn polynomials), R {:.3} J/(kg K)",
+                m.label(),
+                m.r()
+            ),
+        }
+    }
+}
+
+impl Thermo for Gas {
+    fn r(&self) -> f64 {
+        match self {
+            Gas::Perfect(g) => g.r(),
+            Gas::Thermal(m) => m.r(),
+        }
+    }
+    fn range(&self) -> (f64, f64) {
+        match self {
+            Gas::Perfect(g) => g.range(),
+            Gas::Thermal(m) => m.range(),
+        }
+    }
+    fn cp(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => g.cp(t),
+            Gas::Thermal(m) => m.cp(t),
+        }
+    }
+    fn h(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => g.h(t),
+            Gas::Thermal(m) => m.h(t),
+        }
+    }
+    fn phi(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => g.phi(t),
+            Gas::Thermal(m) => m.phi(t),
+        }
+    }
+    fn gamma(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => g.gamma(t),
+            Gas::Thermal(m) => m.gamma(t),
+        }
+    }
+    fn state(&self, t: f64) -> Result<ThermoPoint, GasError> {
+        match self {
+            Gas::Perfect(g) => g.state(t),
+            Gas::Thermal(m) => m.state(t),
+        }
+    }
+}
+
+/// The gas model of a workbook: which [`Gas`] a composition gets.
+#[derive(Debug, Clone, PartialEq)]
+pub enum GasModel {
+    /// Calorically perfect; `hot` (if set) serves compositions with fuel burnt.
+    Perfect {
+        /// Gas for air (no fuel burnt).
+        cold: PerfectGas,
+        /// Gas for combustion products, if different.
+        hot: Option<PerfectGas>,
+    },
+    /// Thermally perfect mixtures from the NASA Glenn polynomials.
+    Thermal,
+}
+
+impl GasModel {
+    /// The gas of a composition (rich or negative fuel-air ratios refused).
+    pub fn gas(&self, c: &Composition) -> Result<Gas, GasError> {
+        c.check()?;
+        Ok(match self {
+            GasModel::Perfect { cold, hot } => match hot {
+                Some(h) if c.far > 0.0 => Gas::Perfect(*h),
+                _ => Gas::Perfect(*cold),
+            },
+            GasModel::Thermal => Gas::Thermal(c.mixture()),
+        })
+    }
+}
+
+/// Find the temperature with a given value of a monotonic-increasing
+/// property (h or phi) inside the gas's range: bracketed Newton on `cp` (or
+/// `cp/T`), used by every relation that inverts h or phi.
+pub fn invert_h<G: Thermo + ?Sized>(gas: &G, h_target: f64, guess: f64) -> Result<f64, GasError> {
+    invert(gas, h_target, guess, |g, t| Ok((g.h(t)?, g.cp(t)?)))
+}
+
+/// Temperature at which `phi(T)` equals `phi_target`.
+pub fn invert_phi<G: Thermo + ?Sized>(
+    gas: &G,
+    phi_target: f64,
+    guess: f64,
+) -> Result<f64, GasError> {
+    invert(gas, phi_target, guess, |g, t| Ok((g.phi(t)?, g.cp(t)? / t)))
+}
+
+fn invert<G: Thermo + ?Sized>(
+    gas: &G,
+    target: f64,
+    guess: f64,
+    f: impl Fn(&G, f64) -> Result<(f64, f64), GasError>,
+) -> Result<f64, GasError> {
+    let (min, max) = gas.range();
+    let (lo_t, hi_t) = (min.max(1e-6), max.min(1e7));
+    let (f_lo, _) = f(gas, lo_t)?;
+    let (f_hi, _) = f(gas, hi_t)?;
+    let model = match gas.range().1.is_finite() {
+        true => "thermally perfect",
+        false => "calorically perfect",
+    };
+    if !target.is_finite() || target < f_lo || target > f_hi {
+        // The required temperature lies outside the model's range.
+        let t = if target.is_finite() && target < f_lo {
+            lo_t * 0.999
+        } else {
+            hi_t * 1.001
+        };
+        return Err(GasError::OutOfRange {
+            t,
+            min,
+            max,
+            model,
+        });
+    }
+    let (mut lo, mut hi) = (lo_t, hi_t);
+    let mut t = if guess.is_finite() && guess > lo && guess < hi {
+        guess
+    } else {
+        0.5 * (lo + hi)
+    };
+    for _ in 0..200 {
+        let (v, d) = f(gas, t)?;
+        let r = v - target;
+        if r > 0.0 {
+            hi = t;
+        } else {
+            lo = t;
+        }
+        let mut next = t - r / d;
+        if !(next > lo && next < hi) {
+            next = 0.5 * (lo + hi);
+        }
+        if (next - t).abs() <= 1e-14 * t || hi - lo <= 1e-14 * t {
+            return Ok(next);
+        }
+        t = next;
+    }
+    Ok(t)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn perfect_air_cp_is_gamma_r_over_gamma_minus_one() {
+        // Closed form: cp = gamma R / (gamma - 1) = 1.4 * 287.05 / 0.4 = 1004.675.
+        let g = PerfectGas::AIR;
+        assert_relative_eq!(g.cp(300.0).unwrap(), 1004.675, max_relative = 1e-12);
+        assert_relative_eq!(g.gamma(300.0).unwrap(), 1.4, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn perfect_gas_rejects_bad_gamma_and_temperature() {
+        assert!(PerfectGas::new(1.0, 287.0).is_err());
+        assert!(PerfectGas::new(f64::NAN, 287.0).is_err());
+        assert!(PerfectGas::new(1.4, -1.0).is_err());
+        assert!(PerfectGas::AIR.h(-5.0).is_err());
+    }
+
+    #[test]
+    fn inverse_of_h_and_phi_returns_temperature() {
+        let air = Gas::Thermal(Mixture::dry_air());
+        for t in [210.0, 500.0, 999.0, 1000.0, 1001.0, 2500.0, 5900.0] {
+            let h = air.h(t).unwrap();
+            let phi = air.phi(t).unwrap();
+            // The two NASA ranges meet at 1000 K with a jump of about 2e-9 in h
+            // (the published data, not the inversion), hence 1e-9.
+            assert_relative_eq!(invert_h(&air, h, 800.0).unwrap(), t, max_relative = 1e-9);
+            assert_relative_eq!(invert_phi(&air, phi, 800.0).unwrap(), t, max_relative = 1e-9);
+        }
+        // Below the range: an error, not an extrapolation.
+        let h150 = air.h(200.0).unwrap() - 60_000.0;
+        assert!(matches!(
+            invert_h(&air, h150, 300.0),
+            Err(GasError::OutOfRange { .. })
+        ));
+    }
+}

@@ -1,0 +1,19 @@
+//! stationwise: a workbook of compressible-flow stations.
+//!
+//! Module map (arrows point the only way dependencies go):
+//!
+//! * [`units`]: parsing and printing values with units; SI inside.
+//! * [`gas`]: gas models (calorically and thermally perfect, mixtures, fuels).
+//! * [`flow`]: flow relations (isentropic, shocks, Rayleigh, Fanno,
+//!   compression and expansion, combustion) and their solvers. Uses `gas`.
+//! * [`atmosphere`]: the standard atmosphere and standard-day corrections.
+//! * [`table`]: flow tables (rows of relation values) for the command line.
+//!
+//! `units`, `gas`, `flow` and `atmosphere` know nothing of files or
+//! terminals; front ends sit on top.
+#![deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+#![cfg_attr(test, allow(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
+#![warn(missing_docs)]
+
+pub mod flow;
+pub mod gas;
