@@ -8,6 +8,7 @@
 //!   compression and expansion, combustion) and their solvers. Uses `gas`.
 //! * [`atmosphere`]: the standard atmosphere and standard-day corrections.
 //! * [`table`]: flow tables (rows of relation values) for the command line.
+//! * [`report`]: tables of results and their text, CSV and JSON printers.
 //!
 //! `units`, `gas`, `flow` and `atmosphere` know nothing of files or
 //! terminals; front ends sit on top.
@@ -15,5 +16,10 @@
 #![cfg_attr(test, allow(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
 #![warn(missing_docs)]
 
+pub mod atmosphere;
+pub mod cli;
 pub mod flow;
 pub mod gas;
+pub mod report;
+pub mod table;
+pub mod units;

@@ -1,0 +1,86 @@
+//! `stationwise atmosphere`: the standard atmosphere at a list of altitudes.
+
+use super::{Failure, OutFormat, Units, print_table};
+use crate::atmosphere::{self, AltitudeKind};
+use crate::report::{Cell, Column, Table};
+use crate::units::{self, Quantity, UnitSystem};
+
+/// Altitudes are geopotential unless --geometric (Earth radius 6356766 m, as the standard uses).
+#[derive(Debug, clap::Args)]
+pub(super) struct Args {
+    /// Altitudes: comma list and/or FROM:TO:STEP, in metres (feet with --units us).
+    #[arg(long, allow_hyphen_values = true)]
+    altitude: String,
+    /// Hot- or cold-day temperature offset from standard ("15", "15 K", "27 degF").
+    #[arg(long, default_value = "0 K", allow_hyphen_values = true)]
+    offset: String,
+    /// Altitudes are geometric (height above sea level) instead of geopotential.
+    #[arg(long)]
+    geometric: bool,
+    /// Unit set for input altitudes and output values.
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    units: Units,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = OutFormat::Text)]
+    format: OutFormat,
+}
+
+pub(super) fn run(a: Args) -> Result<u8, Failure> {
+    let system: UnitSystem = a.units.into();
+    let alts = crate::table::parse_list(&a.altitude)
+        .map_err(|e| Failure::bad(format!("--altitude: {e}")))?;
+    let offset = units::parse(&a.offset, Quantity::TemperatureDifference, "--offset")
+        .map_err(Failure::bad)?
+        .si;
+    let kind = if a.geometric {
+        AltitudeKind::Geometric
+    } else {
+        AltitudeKind::Geopotential
+    };
+    let qs = [
+        ("altitude", Quantity::Length),
+        ("temperature", Quantity::Temperature),
+        ("pressure", Quantity::Pressure),
+        ("density", Quantity::Density),
+        ("sound_speed", Quantity::Velocity),
+    ];
+    // Keys carry the unit, so JSON readers never guess: SI keys are the contract.
+    let unit_of = |q: Quantity| match (system, q) {
+        (UnitSystem::Si, Quantity::Length) => units::find_unit("m"),
+        (UnitSystem::Si, Quantity::Pressure) => units::find_unit("Pa"),
+        (UnitSystem::Us, Quantity::Length) => units::find_unit("ft"),
+        _ => Some(units::display_unit(q, system)),
+    };
+    let mut cols = Vec::new();
+    let mut unit_list = Vec::new();
+    for (name, q) in qs {
+        let u = unit_of(q).ok_or_else(|| Failure::bad("internal: unit table incomplete"))?;
+        let key_unit = u
+            .symbol
+            .to_lowercase()
+            .replace('/', "_")
+            .replace("deg", "");
+        cols.push(Column::new(&format!("{name}_{key_unit}"), name, u.symbol));
+        unit_list.push(u);
+    }
+    let mut t = Table::new(cols);
+    for h in alts {
+        let h_si = units::to_si(h, unit_list[0]);
+        let s = atmosphere::standard(h_si, kind, offset).map_err(Failure::bad)?;
+        let vals = [
+            h_si,
+            s.temperature_k,
+            s.pressure_pa,
+            s.density_kg_m3,
+            s.sound_speed_m_s,
+        ];
+        t.rows.push(
+            vals.iter()
+                .zip(&unit_list)
+                .map(|(v, u)| Cell::from(units::from_si(*v, u)))
+                .collect(),
+        );
+    }
+    print_table(&t, a.format)?;
+    Ok(0)
+}

@@ -1,0 +1,117 @@
+//! The command line: clap arguments and one file per command.
+//!
+//! Exit codes (documented in `--help` and the README):
+//! * 0: everything computed;
+//! * 1: the request or a file could not be read or understood (one line on stderr);
+//! * 2: the workbook was read but some process has a problem (listed), or
+//!   `check`/`fmt --check` found a difference.
+
+mod atmosphere;
+mod table;
+
+use clap::{Parser, Subcommand, ValueEnum};
+use std::process::ExitCode;
+
+/// A terminal workbook for compressible-flow stations.
+///
+/// Results are engineering estimates: they do not replace the facility's
+/// procedures, local codes or licensed engineering review.
+#[derive(Debug, Parser)]
+#[command(name = "stationwise", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Print flow tables (isentropic, shocks, Rayleigh, Fanno) for any gas.
+    Table(table::Args),
+    /// Print the standard atmosphere (ISO 2533 / U.S. Standard Atmosphere 1976).
+    Atmosphere(atmosphere::Args),
+}
+
+/// Output format shared by the commands that print rows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum OutFormat {
+    /// Aligned text.
+    Text,
+    /// Comma-separated values with a header of keys.
+    Csv,
+    /// JSON object with `rows`.
+    Json,
+}
+
+impl From<OutFormat> for crate::report::Format {
+    fn from(f: OutFormat) -> Self {
+        match f {
+            OutFormat::Text => crate::report::Format::Text,
+            OutFormat::Csv => crate::report::Format::Csv,
+            OutFormat::Json => crate::report::Format::Json,
+        }
+    }
+}
+
+/// Display unit set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Units {
+    /// SI units.
+    Si,
+    /// US customary units.
+    Us,
+}
+
+impl From<Units> for crate::units::UnitSystem {
+    fn from(u: Units) -> Self {
+        match u {
+            Units::Si => crate::units::UnitSystem::Si,
+            Units::Us => crate::units::UnitSystem::Us,
+        }
+    }
+}
+
+/// A failure that ends a command: its message and exit code.
+#[derive(Debug)]
+pub struct Failure {
+    /// One line for stderr.
+    pub message: String,
+    /// The exit code.
+    pub code: u8,
+}
+
+impl Failure {
+    /// A bad request or unreadable file (exit 1).
+    pub fn bad(message: impl std::fmt::Display) -> Failure {
+        Failure {
+            message: message.to_string(),
+            code: 1,
+        }
+    }
+}
+
+/// Print a table to stdout in a format.
+pub(crate) fn print_table(
+    t: &crate::report::Table,
+    format: OutFormat,
+) -> Result<(), Failure> {
+    let mut out = std::io::stdout().lock();
+    crate::report::printer(format.into())
+        .print(t, &mut out)
+        .map_err(|e| Failure::bad(format!("cannot write the output: {e}")))
+}
+
+/// Parse arguments, run, map the outcome to an exit code.
+pub fn run() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Table(a) => table::run(a),
+        Command::Atmosphere(a) => atmosphere::run(a),
+    };
+    match result {
+        Ok(code) => ExitCode::from(code),
+        Err(f) => {
+            eprintln!("stationwise: {}", f.message);
+            ExitCode::from(f.code)
+        }
+    }
+}

@@ -1,0 +1,128 @@
+//! `stationwise table`: flow tables for a calorically or thermally perfect gas.
+
+use super::{Failure, OutFormat, print_table};
+use crate::flow::Branch;
+use crate::gas::{Composition, Fuel, Gas, PerfectGas};
+use crate::table::{self, Relation, Rows, TableGas};
+use crate::units::{self, Quantity};
+use clap::ValueEnum;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub(super) enum RelationArg {
+    /// Isentropic ratios: mach, t_tt, p_pt, rho_rhot, a_astar, mach_angle_deg, prandtl_meyer_deg.
+    Isentropic,
+    /// Normal shock: mach1, mach2, p2_p1, t2_t1, rho2_rho1, pt2_pt1.
+    NormalShock,
+    /// Oblique shock at --deflection: weak and strong solutions.
+    ObliqueShock,
+    /// Rayleigh line (constant-area heating): ratios to the sonic state.
+    Rayleigh,
+    /// Fanno line (constant-area friction): 4fL*/D and ratios to the sonic state.
+    Fanno,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub(super) enum GasArg {
+    /// Dry air, thermally perfect (NASA Glenn polynomials).
+    Air,
+    /// Lean products of a hydrocarbon fuel at --far, thermally perfect.
+    Products,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub(super) enum BranchArg {
+    /// Below Mach 1.
+    Subsonic,
+    /// Above Mach 1.
+    Supersonic,
+}
+
+/// Rows come from --mach, or from --area-ratio with --branch, or from --p-pt.
+#[derive(Debug, clap::Args)]
+pub(super) struct Args {
+    /// The relation to tabulate.
+    relation: RelationArg,
+    /// Calorically perfect gas with this ratio of specific heats.
+    #[arg(long, conflicts_with = "gas")]
+    gamma: Option<f64>,
+    /// Gas constant for --gamma, J/(kg K).
+    #[arg(long, default_value_t = 287.05, requires = "gamma")]
+    r: f64,
+    /// Thermally perfect gas.
+    #[arg(long)]
+    gas: Option<GasArg>,
+    /// Fuel-air ratio for --gas products (kg fuel per kg dry air).
+    #[arg(long, default_value_t = 0.0)]
+    far: f64,
+    /// Fuel hydrogen-to-carbon molar ratio for --gas products.
+    #[arg(long, default_value_t = 1.92)]
+    hc: f64,
+    /// Total temperature for a thermally perfect gas ("1500", "1500 K", "2240 degF").
+    #[arg(long, default_value = "288.15 K")]
+    tt: String,
+    /// Mach numbers: a comma list and/or FROM:TO:STEP ranges.
+    #[arg(long, allow_hyphen_values = true)]
+    mach: Option<String>,
+    /// Area ratios A/A* (rows by inverse): list as for --mach.
+    #[arg(long, conflicts_with_all = ["mach", "p_pt"], requires = "branch")]
+    area_ratio: Option<String>,
+    /// Branch for --area-ratio.
+    #[arg(long)]
+    branch: Option<BranchArg>,
+    /// Static-to-total pressure ratios p/pt (rows by inverse).
+    #[arg(long, conflicts_with = "mach")]
+    p_pt: Option<String>,
+    /// Flow deflection for oblique-shock, degrees.
+    #[arg(long)]
+    deflection: Option<f64>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = OutFormat::Text)]
+    format: OutFormat,
+}
+
+pub(super) fn run(a: Args) -> Result<u8, Failure> {
+    let list = |flag: &str, s: &str| table::parse_list(s).map_err(|e| Failure::bad(format!("{flag}: {e}")));
+    let rows = if let Some(m) = &a.mach {
+        Rows::Mach(list("--mach", m)?)
+    } else if let Some(r) = &a.area_ratio {
+        let b = match a.branch {
+            Some(BranchArg::Supersonic) => Branch::Supersonic,
+            _ => Branch::Subsonic,
+        };
+        Rows::AreaRatio(list("--area-ratio", r)?, b)
+    } else if let Some(p) = &a.p_pt {
+        Rows::PressureRatio(list("--p-pt", p)?)
+    } else {
+        return Err(Failure::bad(
+            "give rows with --mach LIST, --area-ratio LIST --branch B, or --p-pt LIST",
+        ));
+    };
+    let gas = match (a.gamma, a.gas) {
+        (Some(g), _) => Gas::Perfect(PerfectGas::new(g, a.r).map_err(Failure::bad)?),
+        (None, Some(GasArg::Air)) => Gas::Thermal(Composition::dry_air().mixture()),
+        (None, Some(GasArg::Products)) => {
+            let fuel = Fuel::new(a.hc).map_err(Failure::bad)?;
+            let c = Composition::dry_air().burnt(a.far, fuel).map_err(Failure::bad)?;
+            Gas::Thermal(c.mixture())
+        }
+        (None, None) => Gas::Perfect(PerfectGas::AIR),
+    };
+    let tt = units::parse(&a.tt, Quantity::Temperature, "--tt")
+        .map_err(Failure::bad)?
+        .si;
+    let rel = match a.relation {
+        RelationArg::Isentropic => Relation::Isentropic,
+        RelationArg::NormalShock => Relation::NormalShock,
+        RelationArg::ObliqueShock => {
+            let d = a.deflection.ok_or_else(|| {
+                Failure::bad("oblique-shock needs --deflection DEG (flow turning angle)")
+            })?;
+            Relation::ObliqueShock(d.to_radians())
+        }
+        RelationArg::Rayleigh => Relation::Rayleigh,
+        RelationArg::Fanno => Relation::Fanno,
+    };
+    let t = table::build(rel, &TableGas { gas, tt }, &rows).map_err(Failure::bad)?;
+    print_table(&t, a.format)?;
+    Ok(0)
+}

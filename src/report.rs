@@ -1,0 +1,283 @@
+//! Tabular results and their printers.
+//!
+//! Every command that prints rows (flow tables, the atmosphere, stations,
+//! sweeps) builds one [`Table`]; the [`Printer`] trait turns it into text,
+//! CSV or JSON, so the three formats never drift apart. JSON is an object
+//! `{"rows": [{key: value, ...}, ...]}` with `null` for undefined cells;
+//! CSV has one header row of keys; text aligns columns under a header of
+//! labels and a line of units.
+
+use std::io::{self, Write};
+
+/// A column: machine key, human label, unit shown in text output.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Column {
+    /// Key for CSV and JSON ("p_pt").
+    pub key: String,
+    /// Label for text ("p/pt").
+    pub label: String,
+    /// Unit shown under the label in text ("" for ratios).
+    pub unit: String,
+}
+
+impl Column {
+    /// A column whose label is its key.
+    pub fn new(key: &str, label: &str, unit: &str) -> Column {
+        Column {
+            key: key.to_string(),
+            label: label.to_string(),
+            unit: unit.to_string(),
+        }
+    }
+}
+
+/// A cell: a number, a text, or nothing.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Cell {
+    /// A number in the column's unit.
+    Num(f64),
+    /// A text (a name, a problem).
+    Text(String),
+    /// Not defined here.
+    Empty,
+}
+
+impl From<f64> for Cell {
+    fn from(v: f64) -> Cell {
+        if v.is_finite() { Cell::Num(v) } else { Cell::Empty }
+    }
+}
+impl From<Option<f64>> for Cell {
+    fn from(v: Option<f64>) -> Cell {
+        v.map_or(Cell::Empty, Cell::from)
+    }
+}
+impl From<&str> for Cell {
+    fn from(v: &str) -> Cell {
+        Cell::Text(v.to_string())
+    }
+}
+impl From<String> for Cell {
+    fn from(v: String) -> Cell {
+        Cell::Text(v)
+    }
+}
+
+/// Rows under named columns.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Table {
+    /// Column definitions.
+    pub columns: Vec<Column>,
+    /// Rows, each as long as `columns`.
+    pub rows: Vec<Vec<Cell>>,
+}
+
+impl Table {
+    /// A table with these columns and no rows.
+    pub fn new(columns: Vec<Column>) -> Table {
+        Table {
+            columns,
+            rows: Vec::new(),
+        }
+    }
+}
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    /// Aligned text for a terminal.
+    Text,
+    /// Comma-separated values.
+    Csv,
+    /// JSON object with `rows`.
+    Json,
+}
+
+/// One interface over the output formats.
+pub trait Printer {
+    /// Write the whole table.
+    fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()>;
+}
+
+/// The printer for a format.
+pub fn printer(format: Format) -> Box<dyn Printer> {
+    match format {
+        Format::Text => Box::new(TextPrinter),
+        Format::Csv => Box::new(CsvPrinter),
+        Format::Json => Box::new(JsonPrinter),
+    }
+}
+
+/// Aligned columns, six significant digits.
+pub struct TextPrinter;
+/// CSV with a header row of keys, full precision.
+pub struct CsvPrinter;
+/// JSON `{"rows": [...]}`, full precision.
+pub struct JsonPrinter;
+
+/// A number with `sig` significant digits, without exponent for ordinary
+/// magnitudes and without "-0".
+pub fn sig(v: f64, sig: usize) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return if v.is_finite() {
+            "0".to_string()
+        } else {
+            "-".to_string()
+        };
+    }
+    let mag = v.abs().log10().floor() as i32;
+    if !(-4..=9).contains(&mag) {
+        return format!("{:.*e}", sig.saturating_sub(1), v);
+    }
+    let decimals = (sig as i32 - 1 - mag).max(0) as usize;
+    let s = format!("{v:.decimals$}");
+    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
+        s[1..].to_string()
+    } else {
+        s
+    }
+}
+
+fn text_cell(c: &Cell) -> String {
+    match c {
+        Cell::Num(v) => sig(*v, 6),
+        Cell::Text(t) => t.clone(),
+        Cell::Empty => "-".to_string(),
+    }
+}
+
+impl Printer for TextPrinter {
+    fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
+        let cells: Vec<Vec<String>> = table
+            .rows
+            .iter()
+            .map(|r| r.iter().map(text_cell).collect())
+            .collect();
+        let widths: Vec<usize> = table
+            .columns
+            .iter()
+            .enumerate()
+            .map(|(i, c)| {
+                let w = cells
+                    .iter()
+                    .map(|r| r.get(i).map_or(0, |s| s.chars().count()))
+                    .max()
+                    .unwrap_or(0);
+                w.max(c.label.chars().count())
+                    .max(c.unit.chars().count() + 2)
+            })
+            .collect();
+        let line = |parts: Vec<String>| -> String {
+            parts
+                .iter()
+                .zip(&widths)
+                .map(|(s, w)| format!("{s:>w$}"))
+                .collect::<Vec<_>>()
+                .join("  ")
+                .trim_end()
+                .to_string()
+        };
+        writeln!(
+            out,
+            "{}",
+            line(table.columns.iter().map(|c| c.label.clone()).collect())
+        )?;
+        if table.columns.iter().any(|c| !c.unit.is_empty()) {
+            writeln!(
+                out,
+                "{}",
+                line(
+                    table
+                        .columns
+                        .iter()
+                        .map(|c| if c.unit.is_empty() {
+                            String::new()
+                        } else {
+                            format!("[{}]", c.unit)
+                        })
+                        .collect()
+                )
+            )?;
+        }
+        for r in cells {
+            writeln!(out, "{}", line(r))?;
+        }
+        Ok(())
+    }
+}
+
+impl Printer for CsvPrinter {
+    fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
+        let mut w = csv::Writer::from_writer(out);
+        w.write_record(table.columns.iter().map(|c| c.key.as_str()))?;
+        for r in &table.rows {
+            w.write_record(r.iter().map(|c| match c {
+                Cell::Num(v) => format!("{v}"),
+                Cell::Text(t) => t.clone(),
+                Cell::Empty => String::new(),
+            }))?;
+        }
+        w.flush()?;
+        Ok(())
+    }
+}
+
+/// One row as a JSON object.
+pub fn row_json(columns: &[Column], row: &[Cell]) -> serde_json::Value {
+    let mut m = serde_json::Map::new();
+    for (c, v) in columns.iter().zip(row) {
+        m.insert(c.key.clone(), cell_json(v));
+    }
+    serde_json::Value::Object(m)
+}
+
+/// One cell as JSON (null when empty).
+pub fn cell_json(v: &Cell) -> serde_json::Value {
+    match v {
+        Cell::Num(x) => serde_json::Number::from_f64(*x)
+            .map_or(serde_json::Value::Null, serde_json::Value::Number),
+        Cell::Text(t) => serde_json::Value::String(t.clone()),
+        Cell::Empty => serde_json::Value::Null,
+    }
+}
+
+impl Printer for JsonPrinter {
+    fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
+        let rows: Vec<serde_json::Value> = table
+            .rows
+            .iter()
+            .map(|r| row_json(&table.columns, r))
+            .collect();
+        let v = serde_json::json!({ "rows": rows });
+        serde_json::to_writer_pretty(&mut *out, &v)?;
+        writeln!(out)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn significant_digits() {
+        assert_eq!(sig(0.127801, 5), "0.12780");
+        assert_eq!(sig(101325.0, 6), "101325");
+        assert_eq!(sig(-0.0000001, 3), "-1.00e-7");
+        assert_eq!(sig(-0.00001, 2), "-0.000010");
+        assert_eq!(sig(-0.0004, 1), "-0.0004");
+    }
+
+    #[test]
+    fn json_and_csv_carry_nulls_and_keys() {
+        let mut t = Table::new(vec![Column::new("a", "A", ""), Column::new("b", "B", "K")]);
+        t.rows.push(vec![Cell::Num(1.5), Cell::Empty]);
+        let mut j = Vec::new();
+        JsonPrinter.print(&t, &mut j).unwrap();
+        let v: serde_json::Value = serde_json::from_slice(&j).unwrap();
+        assert_eq!(v["rows"][0]["a"], 1.5);
+        assert!(v["rows"][0]["b"].is_null());
+        let mut c = Vec::new();
+        CsvPrinter.print(&t, &mut c).unwrap();
+        assert_eq!(String::from_utf8(c).unwrap(), "a,b\n1.5,\n");
+    }
+}
