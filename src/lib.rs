@@ -7,6 +7,10 @@
 //! * [`flow`]: flow relations (isentropic, shocks, Rayleigh, Fanno,
 //!   compression and expansion, combustion) and their solvers. Uses `gas`.
 //! * [`atmosphere`]: the standard atmosphere and standard-day corrections.
+//! * [`book`]: the workbook model (givens as typed, stations, processes).
+//! * [`engine`]: dependency graph, incremental recompute, problems, goals,
+//!   explanations. Uses `book`, `flow`, `gas`, `atmosphere`.
+//! * [`format`]: the RON workbook file (versioned, canonical, atomic saves).
 //! * [`table`]: flow tables (rows of relation values) for the command line.
 //! * [`report`]: tables of results and their text, CSV and JSON printers.
 //!
@@ -17,8 +21,11 @@
 #![warn(missing_docs)]
 
 pub mod atmosphere;
+pub mod book;
 pub mod cli;
+pub mod engine;
 pub mod flow;
+pub mod format;
 pub mod gas;
 pub mod report;
 pub mod table;

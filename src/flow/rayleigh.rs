@@ -152,6 +152,47 @@ pub fn heat(gas: &Gas, inlet: &FlowState, q: f64) -> Result<FlowState, FlowError
     line.state(gas, u)
 }
 
+/// The state with mass flux `flux`, impulse per area `impulse` (p + rho V^2)
+/// and total temperature `tt`, on a branch: a constant-area mixer's exit.
+pub fn on_line(
+    gas: &Gas,
+    flux: f64,
+    impulse: f64,
+    tt: f64,
+    branch: Branch,
+) -> Result<FlowState, FlowError> {
+    if !(flux > 0.0 && impulse > 0.0 && tt > 0.0) {
+        return Err(FlowError::BadInput {
+            what: "mixer flux, impulse or total temperature",
+            value: flux.min(impulse).min(tt),
+            why: "they must be positive",
+        });
+    }
+    let line = Line {
+        g: flux,
+        i: impulse,
+        r: gas.r(),
+    };
+    let u_star = line.sonic(gas)?;
+    let ht_star = line.ht(gas, u_star)?;
+    let target = gas.h(tt)?;
+    if target > ht_star {
+        return Err(FlowError::NoSolution {
+            what: "mixed-out state (the streams' momentum and energy cannot fit the area: choked)",
+        });
+    }
+    let (lo_t, _) = gas.range();
+    let (u_lo, u_hi) = line.u_at_t(lo_t.max(1e-9) * 1.000001);
+    let f = |u: f64| -> Result<f64, FlowError> { Ok((line.ht(gas, u)? - target) / ht_star.abs()) };
+    let (a, b) = match branch {
+        Branch::Subsonic => (u_lo, u_star),
+        Branch::Supersonic => (u_star, u_hi),
+    };
+    let u = solve::brent(f, a, b, 1e-15, 300)
+        .map_err(|e| FlowError::from_solve("mixed-out state", e))?;
+    line.state(gas, u)
+}
+
 /// Ratios to the sonic state of the line through `s`: (Tt/Tt*, T/T*, p/p*, pt/pt*).
 pub fn ratios(gas: &Gas, s: &FlowState) -> Result<[f64; 4], FlowError> {
     if let Gas::Perfect(g) = gas {

@@ -1,0 +1,891 @@
+//! The workbook model: ambient, gas settings, stations, processes, shafts
+//! and goals, as the user wrote them.
+//!
+//! Every number a user gives is a [`Given`]: the text as typed ("14.7 psia")
+//! and its SI value. The text is what a file stores, so a save keeps the
+//! user's units; the SI value is what the engine reads. A given's quantity
+//! comes from the field it sits in, so [`Workbook::visit_givens`] walks every
+//! field with its path ("process.compressor.pressure_ratio") and quantity:
+//! loading, editing by path, diffing, sweeping and goals all use it.
+//!
+//! The model derives serde for the file format (`crate::format` owns
+//! reading and writing); it knows nothing of terminals or the engine.
+
+pub mod paths;
+
+pub use paths::{Path, PathError};
+
+use crate::flow::Branch;
+use crate::flow::shock::Strength;
+use crate::units::{self, Quantity, UnitError};
+use serde::{Deserialize, Deserializer, Serialize, Serializer};
+
+/// The file format version this build writes and reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// A number as the user typed it, with its SI value.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Given {
+    text: String,
+    si: f64,
+}
+
+impl Given {
+    /// Parse `text` as a value of `quantity`; `field` names it in errors.
+    pub fn parse(text: &str, quantity: Quantity, field: &str) -> Result<Given, UnitError> {
+        let p = units::parse(text, quantity, field)?;
+        Ok(Given {
+            text: text.trim().to_string(),
+            si: p.si,
+        })
+    }
+
+    /// An unparsed given (from a file, before [`Workbook::resolve`]).
+    pub fn raw(text: &str) -> Given {
+        Given {
+            text: text.to_string(),
+            si: f64::NAN,
+        }
+    }
+
+    /// The SI value.
+    pub fn si(&self) -> f64 {
+        self.si
+    }
+
+    /// The text as typed.
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+
+    /// Set the SI value without changing the text (a goal varies a given).
+    pub fn set_si(&mut self, si: f64) {
+        self.si = si;
+    }
+
+    fn resolve(&mut self, q: Quantity, field: &str) -> Result<(), UnitError> {
+        self.si = units::parse(&self.text, q, field)?.si;
+        Ok(())
+    }
+}
+
+impl Serialize for Given {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(&self.text)
+    }
+}
+
+impl<'de> Deserialize<'de> for Given {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        let text = String::deserialize(d)?;
+        Ok(Given::raw(&text))
+    }
+}
+
+fn is_false(b: &bool) -> bool {
+    !*b
+}
+
+/// A whole workbook.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Workbook {
+    /// File format version.
+    pub format: u32,
+    /// A title.
+    pub title: String,
+    /// A note (what the workbook is for, where its data came from).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub note: String,
+    /// Ambient and flight condition.
+    pub ambient: Ambient,
+    /// Gas model.
+    pub gas: GasSettings,
+    /// Stations in flow order.
+    pub stations: Vec<Station>,
+    /// Processes in flow order.
+    pub processes: Vec<Process>,
+    /// Shafts joining compressors and turbines.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub shafts: Vec<Shaft>,
+    /// Goals: vary a given until a derived value reaches a target.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub goals: Vec<Goal>,
+    /// Store derived results in the file on save.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub keep_results: bool,
+    /// Stored derived results (written when `keep_results` is set).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub results: Option<Vec<StoredRow>>,
+}
+
+/// Stored results of one station or of the summary.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct StoredRow {
+    /// Station name, or "summary".
+    pub row: String,
+    /// Key and value (SI, six significant figures), in a fixed key order.
+    pub values: Vec<(String, f64)>,
+}
+
+/// The ambient block.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Ambient {
+    /// Static pressure and temperature of the surroundings.
+    pub condition: Condition,
+    /// Flight condition (Mach 0 or speed 0 for a static stand).
+    pub flight: Flight,
+    /// Specific humidity of the air (kg vapour per kg moist air).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub humidity: Option<Given>,
+}
+
+/// How the ambient static state is given.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Condition {
+    /// The standard atmosphere at an altitude with a temperature offset.
+    Standard {
+        /// Altitude (geopotential unless `geometric`).
+        altitude: Given,
+        /// Hot- or cold-day offset from the standard temperature.
+        offset: Given,
+        /// Altitude is geometric.
+        #[serde(default, skip_serializing_if = "is_false")]
+        geometric: bool,
+    },
+    /// Measured static pressure and temperature (a test cell, a barometer).
+    Measured {
+        /// Static pressure.
+        pressure: Given,
+        /// Static temperature.
+        temperature: Given,
+    },
+}
+
+/// Flight condition.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Flight {
+    /// Flight Mach number.
+    Mach(Given),
+    /// Flight speed (true air speed).
+    Speed(Given),
+}
+
+/// Gas model settings.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum GasSettings {
+    /// Constant gamma and R; optionally a separate hot-section gas for
+    /// stations carrying combustion products.
+    CaloricallyPerfect {
+        /// Ratio of specific heats of air.
+        gamma: Given,
+        /// Gas constant of air.
+        r: Given,
+        /// Ratio of specific heats of combustion products.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        hot_gamma: Option<Given>,
+        /// Gas constant of combustion products.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        hot_r: Option<Given>,
+    },
+    /// Thermally perfect mixtures (NASA Glenn polynomials).
+    ThermallyPerfect,
+}
+
+/// What fixes a station's static state, when the process into it does not.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Statics {
+    /// Mach number given.
+    Mach(Given),
+    /// Static pressure given.
+    Pressure(Given),
+    /// Velocity given.
+    Velocity(Given),
+    /// Flow area given (Mach on the station's branch).
+    Area(Given),
+}
+
+/// A named flow station.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Station {
+    /// Free-text name ("2", "plenum", "test section").
+    pub name: String,
+    /// A note.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub note: String,
+    /// Measured total temperature (read by processes in a measured mode).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tt: Option<Given>,
+    /// Measured total pressure (read by processes in a measured mode).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pt: Option<Given>,
+    /// What fixes the static state.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub statics: Option<Statics>,
+    /// Branch where the static state is double-valued (default subsonic).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub branch: Option<Branch>,
+}
+
+impl Station {
+    /// A station with only a name.
+    pub fn named(name: &str) -> Station {
+        Station {
+            name: name.to_string(),
+            note: String::new(),
+            tt: None,
+            pt: None,
+            statics: None,
+            branch: None,
+        }
+    }
+}
+
+/// A process from one station to the next.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Process {
+    /// Unique name ("intake", "compressor").
+    pub name: String,
+    /// Upstream station (absent for an entry).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub from: Option<String>,
+    /// Downstream station.
+    pub to: String,
+    /// What it does and in which mode.
+    pub kind: Kind,
+    /// A note.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub note: String,
+}
+
+/// Process kinds, each with its mode.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Kind {
+    /// Where flow enters the workbook.
+    Entry(Entry),
+    /// Adiabatic duct (total temperature unchanged).
+    Duct(Duct),
+    /// Combustor burning fuel.
+    Combustor(Combustor),
+    /// Constant-area heating or cooling (Rayleigh line).
+    Heating(Heating),
+    /// Compressor or fan.
+    Compressor(Compressor),
+    /// Turbine.
+    Turbine(Turbine),
+    /// Normal shock.
+    NormalShock,
+    /// Oblique shock.
+    ObliqueShock(Oblique),
+    /// Nozzle to ambient.
+    Nozzle(Nozzle),
+    /// Flow split into core (`to`) and bypass streams.
+    Split(Split),
+    /// Constant-area mixer of `from` and a second stream.
+    Mixer(Mixer),
+}
+
+/// Entry modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Entry {
+    /// Free stream from the ambient block and flight condition.
+    Freestream {
+        /// Mass flow captured.
+        w: Given,
+    },
+    /// Given total conditions (rig plenum, tunnel reservoir) and mass flow.
+    Plenum {
+        /// Total temperature.
+        tt: Given,
+        /// Total pressure.
+        pt: Given,
+        /// Mass flow.
+        w: Given,
+    },
+    /// Given total conditions; mass flow set by a choked throat.
+    ChokedPlenum {
+        /// Total temperature.
+        tt: Given,
+        /// Total pressure.
+        pt: Given,
+        /// Sonic throat area.
+        throat_area: Given,
+    },
+}
+
+/// Adiabatic duct modes (how the total-pressure loss is set).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Duct {
+    /// Total-pressure recovery pt_out/pt_in given.
+    Recovery {
+        /// pt_out/pt_in.
+        recovery: Given,
+    },
+    /// Loss of total pressure as a multiple of the inlet dynamic pressure.
+    LossCoefficient {
+        /// (pt_in - pt_out) / q_in.
+        k: Given,
+    },
+    /// Outlet total pressure measured on the downstream station; recovery derived.
+    MeasuredExit,
+    /// Constant-area duct with wall friction (Fanno line).
+    Friction {
+        /// Duct length.
+        length: Given,
+        /// Hydraulic diameter.
+        diameter: Given,
+        /// Fanning friction factor.
+        friction: Given,
+    },
+    /// Supersonic intake recovery from the flight Mach number by the
+    /// MIL-E-5008B schedule.
+    IntakeSchedule,
+}
+
+/// Combustor.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Combustor {
+    /// Which of exit temperature and fuel flow is given.
+    pub mode: Burn,
+    /// Total-pressure loss as a fraction of inlet total pressure.
+    pub pressure_loss: Given,
+    /// Combustion efficiency (ignored in the measured mode, where it is derived).
+    pub efficiency: Given,
+    /// Fuel lower heating value.
+    pub lhv: Given,
+    /// Fuel hydrogen-to-carbon molar ratio.
+    pub hc: Given,
+}
+
+/// Combustor modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Burn {
+    /// Exit total temperature given; fuel flow derived.
+    ExitTemperature(Given),
+    /// Fuel flow given; exit total temperature derived.
+    FuelFlow(Given),
+    /// Fuel flow given and exit total temperature measured on the
+    /// downstream station; combustion efficiency derived.
+    Measured(Given),
+}
+
+/// Rayleigh heating modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Heating {
+    /// Heat added per unit mass (negative removes heat).
+    Heat(Given),
+    /// Exit total temperature given.
+    ExitTemperature(Given),
+}
+
+/// Efficiency basis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Basis {
+    /// Isentropic (adiabatic) efficiency.
+    Isentropic,
+    /// Polytropic efficiency.
+    Polytropic,
+}
+
+/// Compressor or fan.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Compressor {
+    /// Mode.
+    pub mode: Compression,
+    /// Shaft it is on.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub shaft: Option<String>,
+}
+
+/// Compressor modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Compression {
+    /// Pressure ratio and efficiency given; exit derived.
+    Design {
+        /// pt_out/pt_in.
+        pressure_ratio: Given,
+        /// Efficiency.
+        efficiency: Given,
+        /// Which efficiency.
+        basis: Basis,
+    },
+    /// Exit total pressure and temperature measured on the downstream
+    /// station; pressure ratio, efficiencies and work derived.
+    Measured,
+}
+
+/// Turbine.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Turbine {
+    /// Mode.
+    pub mode: Expansion,
+    /// Shaft it is on.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub shaft: Option<String>,
+}
+
+/// Turbine modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Expansion {
+    /// Expansion ratio pt_in/pt_out and efficiency given.
+    Design {
+        /// pt_in/pt_out.
+        pressure_ratio: Given,
+        /// Efficiency.
+        efficiency: Given,
+        /// Which efficiency.
+        basis: Basis,
+    },
+    /// Work set by the shaft balance; expansion ratio derived.
+    ShaftWork {
+        /// Efficiency.
+        efficiency: Given,
+        /// Which efficiency.
+        basis: Basis,
+    },
+    /// Exit total pressure and temperature measured; efficiency derived.
+    Measured,
+}
+
+/// Oblique shock.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Oblique {
+    /// Flow deflection.
+    pub deflection: Given,
+    /// Weak or strong solution.
+    pub strength: Strength,
+}
+
+/// Nozzle shapes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Shape {
+    /// Convergent only.
+    Convergent,
+    /// Convergent-divergent.
+    ConvergentDivergent,
+}
+
+/// Nozzle exit modes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Exit {
+    /// Exit area derived: a convergent nozzle passes the flow at the
+    /// ambient pressure or choked; a convergent-divergent one expands fully.
+    Matched,
+    /// Exit area given (geometric).
+    Area(Given),
+}
+
+/// Nozzle to ambient.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Nozzle {
+    /// Shape.
+    pub shape: Shape,
+    /// Exit mode.
+    pub exit: Exit,
+    /// Velocity coefficient (actual over ideal exit velocity).
+    pub cv: Given,
+    /// Discharge coefficient (effective over geometric area).
+    pub cd: Given,
+}
+
+/// Flow split.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Split {
+    /// Bypass mass flow over core mass flow.
+    pub bypass_ratio: Given,
+    /// Station receiving the bypass stream.
+    pub bypass: String,
+}
+
+/// Constant-area mixer.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Mixer {
+    /// Station of the second stream.
+    pub secondary: String,
+}
+
+/// A shaft.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Shaft {
+    /// Name.
+    pub name: String,
+    /// Mechanical efficiency: turbine power times it covers compressors and offtake.
+    pub mechanical_efficiency: Given,
+    /// Power taken off (generator, pumps).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub offtake: Option<Given>,
+    /// Shaft speed (for corrected speed).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub speed: Option<Given>,
+}
+
+/// Vary a given until a derived value reaches a target.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Goal {
+    /// Path of the given to vary ("process.freestream.w").
+    pub vary: String,
+    /// Path of the derived value ("process.nozzle.area").
+    pub target: String,
+    /// Target value, in the target's quantity.
+    pub value: Given,
+    /// Lowest value to try for the varied given.
+    pub low: Given,
+    /// Highest value to try.
+    pub high: Given,
+}
+
+/// One given field met by [`Workbook::visit_givens`].
+pub struct GivenField<'a> {
+    /// Its path.
+    pub path: String,
+    /// Its quantity.
+    pub quantity: Quantity,
+    /// The given.
+    pub given: &'a mut Given,
+}
+
+/// Errors of the workbook structure.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum BookError {
+    /// A given could not be parsed.
+    #[error("{0}")]
+    Unit(#[from] UnitError),
+    /// Two stations or processes with one name.
+    #[error("two {what} are named \"{name}\"; names must be unique")]
+    Duplicate {
+        /// "stations" or "processes".
+        what: &'static str,
+        /// The name.
+        name: String,
+    },
+    /// A reference to a station, shaft or process that does not exist.
+    #[error("{whose} refers to {what} \"{name}\", which does not exist")]
+    Unknown {
+        /// Who refers.
+        whose: String,
+        /// "station", "shaft".
+        what: &'static str,
+        /// The missing name.
+        name: String,
+    },
+    /// A station fed by no process or by several.
+    #[error("station \"{station}\" {why}")]
+    Feed {
+        /// The station.
+        station: String,
+        /// What is wrong.
+        why: String,
+    },
+    /// A loop in the flow path.
+    #[error("the flow path loops: {0}")]
+    Cycle(String),
+    /// A structural rule broken.
+    #[error("{0}")]
+    Rule(String),
+    /// Format version newer than this build.
+    #[error(
+        "this workbook is format {found}; this build reads format {FORMAT_VERSION} (update stationwise)"
+    )]
+    Version {
+        /// Version in the file.
+        found: u32,
+    },
+}
+
+impl Workbook {
+    /// Walk every given with its path and quantity.
+    pub fn visit_givens(&mut self, f: &mut dyn FnMut(GivenField<'_>)) {
+        let mut g = |path: String, quantity: Quantity, given: &mut Given| {
+            f(GivenField {
+                path,
+                quantity,
+                given,
+            })
+        };
+        match &mut self.ambient.condition {
+            Condition::Standard {
+                altitude, offset, ..
+            } => {
+                g("ambient.altitude".into(), Quantity::Length, altitude);
+                g(
+                    "ambient.offset".into(),
+                    Quantity::TemperatureDifference,
+                    offset,
+                );
+            }
+            Condition::Measured {
+                pressure,
+                temperature,
+            } => {
+                g("ambient.pressure".into(), Quantity::Pressure, pressure);
+                g(
+                    "ambient.temperature".into(),
+                    Quantity::Temperature,
+                    temperature,
+                );
+            }
+        }
+        match &mut self.ambient.flight {
+            Flight::Mach(m) => g("ambient.flight_mach".into(), Quantity::Mach, m),
+            Flight::Speed(v) => g("ambient.flight_speed".into(), Quantity::Velocity, v),
+        }
+        if let Some(h) = &mut self.ambient.humidity {
+            g("ambient.humidity".into(), Quantity::Ratio, h);
+        }
+        if let GasSettings::CaloricallyPerfect {
+            gamma,
+            r,
+            hot_gamma,
+            hot_r,
+        } = &mut self.gas
+        {
+            g("gas.gamma".into(), Quantity::Ratio, gamma);
+            g("gas.r".into(), Quantity::SpecificHeat, r);
+            if let Some(x) = hot_gamma {
+                g("gas.hot_gamma".into(), Quantity::Ratio, x);
+            }
+            if let Some(x) = hot_r {
+                g("gas.hot_r".into(), Quantity::SpecificHeat, x);
+            }
+        }
+        for s in &mut self.stations {
+            let base = format!("station.{}", s.name);
+            if let Some(x) = &mut s.tt {
+                g(format!("{base}.tt"), Quantity::Temperature, x);
+            }
+            if let Some(x) = &mut s.pt {
+                g(format!("{base}.pt"), Quantity::Pressure, x);
+            }
+            match &mut s.statics {
+                Some(Statics::Mach(x)) => g(format!("{base}.mach"), Quantity::Mach, x),
+                Some(Statics::Pressure(x)) => g(format!("{base}.p"), Quantity::Pressure, x),
+                Some(Statics::Velocity(x)) => g(format!("{base}.v"), Quantity::Velocity, x),
+                Some(Statics::Area(x)) => g(format!("{base}.area"), Quantity::Area, x),
+                None => {}
+            }
+        }
+        for p in &mut self.processes {
+            let base = format!("process.{}", p.name);
+            let mut q = |field: &str, quantity: Quantity, given: &mut Given| {
+                g(format!("{base}.{field}"), quantity, given)
+            };
+            match &mut p.kind {
+                Kind::Entry(Entry::Freestream { w }) => q("w", Quantity::MassFlow, w),
+                Kind::Entry(Entry::Plenum { tt, pt, w }) => {
+                    q("tt", Quantity::Temperature, tt);
+                    q("pt", Quantity::Pressure, pt);
+                    q("w", Quantity::MassFlow, w);
+                }
+                Kind::Entry(Entry::ChokedPlenum {
+                    tt,
+                    pt,
+                    throat_area,
+                }) => {
+                    q("tt", Quantity::Temperature, tt);
+                    q("pt", Quantity::Pressure, pt);
+                    q("throat_area", Quantity::Area, throat_area);
+                }
+                Kind::Duct(Duct::Recovery { recovery }) => {
+                    q("recovery", Quantity::Ratio, recovery)
+                }
+                Kind::Duct(Duct::LossCoefficient { k }) => q("k", Quantity::Ratio, k),
+                Kind::Duct(Duct::Friction {
+                    length,
+                    diameter,
+                    friction,
+                }) => {
+                    q("length", Quantity::Length, length);
+                    q("diameter", Quantity::Length, diameter);
+                    q("friction", Quantity::Ratio, friction);
+                }
+                Kind::Duct(Duct::MeasuredExit | Duct::IntakeSchedule) => {}
+                Kind::Combustor(c) => {
+                    match &mut c.mode {
+                        Burn::ExitTemperature(t) => q("exit_tt", Quantity::Temperature, t),
+                        Burn::FuelFlow(w) | Burn::Measured(w) => {
+                            q("fuel_flow", Quantity::MassFlow, w)
+                        }
+                    }
+                    q("pressure_loss", Quantity::Ratio, &mut c.pressure_loss);
+                    q("efficiency", Quantity::Ratio, &mut c.efficiency);
+                    q("lhv", Quantity::SpecificEnergy, &mut c.lhv);
+                    q("hc", Quantity::Ratio, &mut c.hc);
+                }
+                Kind::Heating(Heating::Heat(x)) => q("heat", Quantity::SpecificEnergy, x),
+                Kind::Heating(Heating::ExitTemperature(x)) => {
+                    q("exit_tt", Quantity::Temperature, x)
+                }
+                Kind::Compressor(Compressor {
+                    mode:
+                        Compression::Design {
+                            pressure_ratio,
+                            efficiency,
+                            ..
+                        },
+                    ..
+                })
+                | Kind::Turbine(Turbine {
+                    mode:
+                        Expansion::Design {
+                            pressure_ratio,
+                            efficiency,
+                            ..
+                        },
+                    ..
+                }) => {
+                    q("pressure_ratio", Quantity::Ratio, pressure_ratio);
+                    q("efficiency", Quantity::Ratio, efficiency);
+                }
+                Kind::Turbine(Turbine {
+                    mode: Expansion::ShaftWork { efficiency, .. },
+                    ..
+                }) => q("efficiency", Quantity::Ratio, efficiency),
+                Kind::Compressor(_) | Kind::Turbine(_) | Kind::NormalShock => {}
+                Kind::ObliqueShock(o) => q("deflection", Quantity::Angle, &mut o.deflection),
+                Kind::Nozzle(n) => {
+                    if let Exit::Area(a) = &mut n.exit {
+                        q("area", Quantity::Area, a);
+                    }
+                    q("cv", Quantity::Ratio, &mut n.cv);
+                    q("cd", Quantity::Ratio, &mut n.cd);
+                }
+                Kind::Split(s) => q("bypass_ratio", Quantity::Ratio, &mut s.bypass_ratio),
+                Kind::Mixer(_) => {}
+            }
+        }
+        for s in &mut self.shafts {
+            let base = format!("shaft.{}", s.name);
+            g(
+                format!("{base}.mechanical_efficiency"),
+                Quantity::Ratio,
+                &mut s.mechanical_efficiency,
+            );
+            if let Some(x) = &mut s.offtake {
+                g(format!("{base}.offtake"), Quantity::Power, x);
+            }
+            if let Some(x) = &mut s.speed {
+                g(format!("{base}.speed"), Quantity::RotationalSpeed, x);
+            }
+        }
+    }
+
+    /// Parse every given with its field's quantity. All errors are
+    /// collected; the workbook is usable only when there are none.
+    pub fn resolve(&mut self) -> Result<(), Vec<BookError>> {
+        let mut errors = Vec::new();
+        if self.format > FORMAT_VERSION {
+            errors.push(BookError::Version { found: self.format });
+            return Err(errors);
+        }
+        self.visit_givens(&mut |f| {
+            if let Err(e) = f.given.resolve(f.quantity, &f.path) {
+                errors.push(e.into());
+            }
+        });
+        // Goal values take the quantity of their target.
+        for (i, goal) in self.goals.iter_mut().enumerate() {
+            let q = paths::quantity_of_derived(&goal.target)
+                .unwrap_or(Quantity::Ratio);
+            if let Err(e) = goal.value.resolve(q, &format!("goal {} value", i + 1)) {
+                errors.push(e.into());
+            }
+        }
+        // Bounds take the quantity of the varied given.
+        let mut bounds: Vec<(usize, Quantity)> = Vec::new();
+        {
+            let goals: Vec<String> = self.goals.iter().map(|g| g.vary.clone()).collect();
+            self.visit_givens(&mut |f| {
+                for (i, v) in goals.iter().enumerate() {
+                    if *v == f.path {
+                        bounds.push((i, f.quantity));
+                    }
+                }
+            });
+        }
+        for (i, goal) in self.goals.iter_mut().enumerate() {
+            match bounds.iter().find(|(j, _)| *j == i) {
+                Some((_, q)) => {
+                    for (b, name) in [(&mut goal.low, "low"), (&mut goal.high, "high")] {
+                        if let Err(e) = b.resolve(*q, &format!("goal {} {name}", i + 1)) {
+                            errors.push(e.into());
+                        }
+                    }
+                }
+                None => errors.push(BookError::Unknown {
+                    whose: format!("goal {}", i + 1),
+                    what: "given",
+                    name: goal.vary.clone(),
+                }),
+            }
+        }
+        if errors.is_empty() {
+            Ok(())
+        } else {
+            Err(errors)
+        }
+    }
+
+    /// Set the given at `path` from typed text. On error the old value stays.
+    pub fn set_given(&mut self, path: &str, text: &str) -> Result<(), BookError> {
+        let mut result: Option<Result<(), BookError>> = None;
+        self.visit_givens(&mut |f| {
+            if f.path == path {
+                result = Some(match Given::parse(text, f.quantity, &f.path) {
+                    Ok(g) => {
+                        *f.given = g;
+                        Ok(())
+                    }
+                    Err(e) => Err(e.into()),
+                });
+            }
+        });
+        result.unwrap_or_else(|| {
+            Err(BookError::Unknown {
+                whose: "the edit".into(),
+                what: "given",
+                name: path.to_string(),
+            })
+        })
+    }
+
+    /// Every given as (path, quantity, text, SI value), in file order.
+    pub fn givens(&self) -> Vec<(String, Quantity, String, f64)> {
+        let mut copy = self.clone();
+        let mut out = Vec::new();
+        copy.visit_givens(&mut |f| {
+            out.push((f.path, f.quantity, f.given.text.clone(), f.given.si));
+        });
+        out
+    }
+
+    /// The station with this name.
+    pub fn station(&self, name: &str) -> Option<&Station> {
+        self.stations.iter().find(|s| s.name == name)
+    }
+}

@@ -1,0 +1,193 @@
+//! Paths that name a given or a derived value.
+//!
+//! Syntax: `SCOPE.NAME.KEY` for stations, processes and shafts
+//! (`station.3.tt`, `process.compressor.pressure_ratio`,
+//! `station.test section.mach`), and `SCOPE.KEY` for the ambient block, the
+//! gas settings and the summary (`ambient.flight_mach`,
+//! `summary.thrust_net`). NAME may contain spaces and dots: the scope is
+//! the text before the first dot and the key the text after the last one.
+
+use crate::units::Quantity;
+
+/// Scopes of a path.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Scope {
+    /// `ambient.KEY`.
+    Ambient,
+    /// `gas.KEY`.
+    Gas,
+    /// `station.NAME.KEY`.
+    Station,
+    /// `process.NAME.KEY`.
+    Process,
+    /// `shaft.NAME.KEY`.
+    Shaft,
+    /// `summary.KEY`.
+    Summary,
+}
+
+/// A parsed path.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Path {
+    /// Scope.
+    pub scope: Scope,
+    /// Station, process or shaft name (empty for ambient, gas, summary).
+    pub name: String,
+    /// Field or value key.
+    pub key: String,
+}
+
+/// A path that does not parse.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error(
+    "\"{0}\" is not a path: use station.NAME.KEY, process.NAME.KEY, shaft.NAME.KEY, ambient.KEY, gas.KEY or summary.KEY"
+)]
+pub struct PathError(pub String);
+
+impl Path {
+    /// Parse a path.
+    pub fn parse(text: &str) -> Result<Path, PathError> {
+        let err = || PathError(text.to_string());
+        let (scope, rest) = text.split_once('.').ok_or_else(err)?;
+        let scope = match scope.trim() {
+            "ambient" => Scope::Ambient,
+            "gas" => Scope::Gas,
+            "station" => Scope::Station,
+            "process" => Scope::Process,
+            "shaft" => Scope::Shaft,
+            "summary" => Scope::Summary,
+            _ => return Err(err()),
+        };
+        match scope {
+            Scope::Ambient | Scope::Gas | Scope::Summary => {
+                if rest.is_empty() || rest.contains('.') {
+                    return Err(err());
+                }
+                Ok(Path {
+                    scope,
+                    name: String::new(),
+                    key: rest.to_string(),
+                })
+            }
+            _ => {
+                let (name, key) = rest.rsplit_once('.').ok_or_else(err)?;
+                if name.is_empty() || key.is_empty() {
+                    return Err(err());
+                }
+                Ok(Path {
+                    scope,
+                    name: name.to_string(),
+                    key: key.to_string(),
+                })
+            }
+        }
+    }
+}
+
+/// Derived keys of a station: key, label, quantity.
+pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
+    ("tt", "Tt", Quantity::Temperature),
+    ("pt", "pt", Quantity::Pressure),
+    ("t", "T", Quantity::Temperature),
+    ("p", "p", Quantity::Pressure),
+    ("rho", "rho", Quantity::Density),
+    ("v", "V", Quantity::Velocity),
+    ("a", "a", Quantity::Velocity),
+    ("mach", "M", Quantity::Mach),
+    ("w", "W", Quantity::MassFlow),
+    ("area", "A", Quantity::Area),
+    ("far", "FAR", Quantity::Ratio),
+    ("ht", "ht", Quantity::SpecificEnergy),
+    ("s", "s", Quantity::SpecificHeat),
+    ("wc", "Wc", Quantity::MassFlow),
+    ("q", "q", Quantity::Pressure),
+    ("flow_function", "W\u{221a}Tt/(A pt)", Quantity::Ratio),
+    ("gamma", "gamma", Quantity::Ratio),
+];
+
+/// Summary keys: key, label, quantity.
+pub const SUMMARY_KEYS: [(&str, &str, Quantity); 10] = [
+    ("thrust_gross", "gross thrust", Quantity::Force),
+    ("ram_drag", "ram drag", Quantity::Force),
+    ("thrust_net", "net thrust", Quantity::Force),
+    ("fuel", "fuel flow", Quantity::MassFlow),
+    ("tsfc", "TSFC", Quantity::ThrustSpecificFuelConsumption),
+    ("specific_thrust", "specific thrust", Quantity::SpecificThrust),
+    ("eta_thermal", "thermal efficiency", Quantity::Ratio),
+    ("eta_propulsive", "propulsive efficiency", Quantity::Ratio),
+    ("eta_overall", "overall efficiency", Quantity::Ratio),
+    ("air_flow", "air flow", Quantity::MassFlow),
+];
+
+/// Process figure keys: key, label, quantity (a process reports a subset).
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 36] = [
+    ("pressure_ratio", "pressure ratio", Quantity::Ratio),
+    ("tt_ratio", "Tt ratio", Quantity::Ratio),
+    ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
+    ("eta_polytropic", "polytropic efficiency", Quantity::Ratio),
+    ("work", "specific work", Quantity::SpecificEnergy),
+    ("power", "power", Quantity::Power),
+    ("tt_ideal", "ideal exit Tt", Quantity::Temperature),
+    ("wc_in", "inlet corrected flow", Quantity::MassFlow),
+    ("nc", "corrected speed", Quantity::RotationalSpeed),
+    ("recovery", "pt recovery", Quantity::Ratio),
+    ("loss", "pt loss", Quantity::Ratio),
+    ("friction_4fl_d", "4fL/D", Quantity::Ratio),
+    ("fuel_flow", "fuel flow", Quantity::MassFlow),
+    ("far_added", "fuel-air ratio added", Quantity::Ratio),
+    ("exit_tt", "exit Tt", Quantity::Temperature),
+    ("efficiency", "combustion efficiency", Quantity::Ratio),
+    ("heat", "heat added", Quantity::SpecificEnergy),
+    ("max_heat", "heat to thermal choke", Quantity::SpecificEnergy),
+    ("mach_in", "inlet Mach", Quantity::Mach),
+    ("mach_out", "exit Mach", Quantity::Mach),
+    ("beta", "wave angle", Quantity::Angle),
+    ("max_deflection", "max deflection", Quantity::Angle),
+    ("thrust", "gross thrust", Quantity::Force),
+    ("area", "exit area", Quantity::Area),
+    ("throat_area", "throat area", Quantity::Area),
+    ("required_area", "area to pass the flow", Quantity::Area),
+    ("exit_p_ratio", "p exit/p ambient", Quantity::Ratio),
+    ("npr", "nozzle pressure ratio", Quantity::Ratio),
+    ("choked", "choked (1 yes)", Quantity::Ratio),
+    ("bypass_ratio", "bypass ratio", Quantity::Ratio),
+    ("p_ratio_streams", "p secondary/p primary", Quantity::Ratio),
+    ("w", "mass flow", Quantity::MassFlow),
+    ("max_4fl_d", "4fL*/D to choke", Quantity::Ratio),
+    ("imbalance", "shaft imbalance", Quantity::Power),
+    ("p_ratio", "static p ratio", Quantity::Ratio),
+    ("velocity_ratio", "V exit/V inlet", Quantity::Ratio),
+];
+
+/// The quantity of a derived value path, if the key is known.
+pub fn quantity_of_derived(path: &str) -> Option<Quantity> {
+    let p = Path::parse(path).ok()?;
+    let table: &[(&str, &str, Quantity)] = match p.scope {
+        Scope::Station => &STATION_KEYS,
+        Scope::Summary => &SUMMARY_KEYS,
+        Scope::Process => &FIGURE_KEYS,
+        Scope::Shaft => &[
+            ("compressor_power", "", Quantity::Power),
+            ("turbine_power", "", Quantity::Power),
+            ("imbalance", "", Quantity::Power),
+        ],
+        _ => return None,
+    };
+    table.iter().find(|(k, _, _)| *k == p.key).map(|(_, _, q)| *q)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_with_spaces_and_dots() {
+        let p = Path::parse("station.test section.mach").unwrap();
+        assert_eq!((p.scope, p.name.as_str(), p.key.as_str()), (Scope::Station, "test section", "mach"));
+        let p = Path::parse("process.stage 1.5.pressure_ratio").unwrap();
+        assert_eq!(p.name, "stage 1.5");
+        assert!(Path::parse("summary.thrust_net").is_ok());
+        assert!(Path::parse("station.tt").is_err());
+        assert!(Path::parse("nothing").is_err());
+    }
+}

@@ -1,0 +1,1076 @@
+//! The workbook engine: dependency graph, incremental recompute, problems,
+//! goals and explanations.
+//!
+//! A workbook compiles into a graph whose nodes are processes; a process
+//! depends on the processes that produce its input stations and, for a
+//! shaft-work turbine, on the other machines on its shaft. Nodes run in
+//! topological order. An edit marks the nodes that read the edited given
+//! dirty; a node reruns when it is dirty or when a node it depends on
+//! produced a different result in this pass, and a rerun whose result equals
+//! the old one stops the propagation there (backdating). A node that fails
+//! becomes a [`Problem`] on that process; the nodes downstream of it are
+//! blocked by it; the rest still compute.
+//!
+//! Goals (vary a given until a derived value reaches a target) close loops
+//! that the graph cannot: each is solved by Brent's method inside its
+//! bracket, every trial being an incremental recompute.
+//!
+//! The engine never touches files or terminals; the file format, the CLI and
+//! the TUI are front ends over it.
+
+pub mod compute;
+pub mod explain;
+
+use crate::atmosphere::{self, AltitudeKind};
+use crate::book::paths::{STATION_KEYS, SUMMARY_KEYS, Scope};
+use crate::book::{
+    BookError, Condition, Entry, Expansion, Flight, GasSettings, Kind, Path, PathError, Station,
+    Workbook,
+};
+use crate::flow::{FlowState, isentropic, solve};
+use crate::gas::{Composition, GasModel, PerfectGas, T_REFERENCE, Thermo};
+use compute::{Ctx, ProcessResult};
+use explain::{Step, Tracer};
+use std::collections::HashMap;
+
+/// A computed station.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StationValue {
+    /// Mass flow, kg/s.
+    pub w: f64,
+    /// Total temperature, K.
+    pub tt: f64,
+    /// Total pressure, Pa.
+    pub pt: f64,
+    /// Composition.
+    pub comp: Composition,
+    /// Static state, when something fixes it.
+    pub flow: Option<FlowState>,
+    /// Flow area, m2, when known.
+    pub area: Option<f64>,
+}
+
+/// The ambient static state, free stream and air composition.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AmbientState {
+    /// Free stream: static ambient state, flight velocity and its totals.
+    pub flow: FlowState,
+    /// Composition of the air.
+    pub air: Composition,
+}
+
+/// A problem attached to a process (or a goal).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Problem {
+    /// Where: the process name, or "goal N", or "ambient", "gas".
+    pub place: String,
+    /// Message for a test engineer.
+    pub message: String,
+}
+
+/// The state of a station after evaluation.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum StationStatus<'a> {
+    /// Computed.
+    Ok(&'a StationValue),
+    /// Its own process failed (name).
+    Failed(&'a str),
+    /// A process upstream failed (name).
+    Blocked(&'a str),
+}
+
+#[derive(Debug, Clone, PartialEq)]
+enum NodeOut {
+    Done(Box<ProcessResult>),
+    Failed(String),
+    Blocked(String),
+}
+
+/// Compiled structure of a workbook.
+#[derive(Debug, Clone, Default)]
+struct Graph {
+    station_index: HashMap<String, usize>,
+    process_index: HashMap<String, usize>,
+    shaft_index: HashMap<String, usize>,
+    order: Vec<usize>,
+    inputs: Vec<Vec<usize>>,
+    producer: Vec<usize>,
+    deps: Vec<Vec<usize>>,
+    shaft_of: Vec<Option<usize>>,
+    uses_ambient: Vec<bool>,
+}
+
+/// A goal's outcome.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GoalOutcome {
+    /// The solved value of the varied given, SI.
+    pub value: Option<f64>,
+    /// Why it could not be met.
+    pub problem: Option<String>,
+}
+
+/// Summary figures (None where not applicable or not computed).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Summary {
+    /// Gross thrust, N.
+    pub thrust_gross: Option<f64>,
+    /// Ram drag, N.
+    pub ram_drag: Option<f64>,
+    /// Net thrust, N.
+    pub thrust_net: Option<f64>,
+    /// Fuel flow, kg/s.
+    pub fuel: Option<f64>,
+    /// Thrust-specific fuel consumption, kg/(N s).
+    pub tsfc: Option<f64>,
+    /// Net thrust per air flow, N s/kg.
+    pub specific_thrust: Option<f64>,
+    /// Thermal efficiency.
+    pub eta_thermal: Option<f64>,
+    /// Propulsive efficiency.
+    pub eta_propulsive: Option<f64>,
+    /// Overall efficiency.
+    pub eta_overall: Option<f64>,
+    /// Air entering, kg/s.
+    pub air_flow: Option<f64>,
+}
+
+impl Summary {
+    /// A summary figure by key.
+    pub fn get(&self, key: &str) -> Option<f64> {
+        match key {
+            "thrust_gross" => self.thrust_gross,
+            "ram_drag" => self.ram_drag,
+            "thrust_net" => self.thrust_net,
+            "fuel" => self.fuel,
+            "tsfc" => self.tsfc,
+            "specific_thrust" => self.specific_thrust,
+            "eta_thermal" => self.eta_thermal,
+            "eta_propulsive" => self.eta_propulsive,
+            "eta_overall" => self.eta_overall,
+            "air_flow" => self.air_flow,
+            _ => None,
+        }
+    }
+}
+
+/// Power balance of a shaft, W.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct ShaftBalance {
+    /// Power absorbed by its compressors.
+    pub compressor_power: f64,
+    /// Power delivered by its turbines.
+    pub turbine_power: f64,
+    /// Offtake.
+    pub offtake: f64,
+    /// Turbine power times mechanical efficiency minus compressors and offtake.
+    pub imbalance: f64,
+}
+
+/// The engine over one workbook.
+#[derive(Debug, Clone)]
+pub struct Engine {
+    book: Workbook,
+    graph: Graph,
+    model: Result<GasModel, String>,
+    ambient: Result<AmbientState, String>,
+    nodes: Vec<Option<NodeOut>>,
+    dirty: Vec<bool>,
+    goals: Vec<GoalOutcome>,
+    summary: Summary,
+    evaluations: u64,
+}
+
+fn gas_model(g: &GasSettings) -> Result<GasModel, String> {
+    match g {
+        GasSettings::ThermallyPerfect => Ok(GasModel::Thermal),
+        GasSettings::CaloricallyPerfect {
+            gamma,
+            r,
+            hot_gamma,
+            hot_r,
+        } => {
+            let cold = PerfectGas::new(gamma.si(), r.si()).map_err(|e| e.to_string())?;
+            let hot = match (hot_gamma, hot_r) {
+                (None, None) => None,
+                (hg, hr) => Some(
+                    PerfectGas::new(
+                        hg.as_ref().map_or(gamma.si(), |g| g.si()),
+                        hr.as_ref().map_or(r.si(), |g| g.si()),
+                    )
+                    .map_err(|e| format!("hot section: {e}"))?,
+                ),
+            };
+            Ok(GasModel::Perfect { cold, hot })
+        }
+    }
+}
+
+fn ambient_state(book: &Workbook, model: &GasModel) -> Result<AmbientState, String> {
+    let a = &book.ambient;
+    let (t, p) = match &a.condition {
+        Condition::Standard {
+            altitude,
+            offset,
+            geometric,
+        } => {
+            let kind = if *geometric {
+                AltitudeKind::Geometric
+            } else {
+                AltitudeKind::Geopotential
+            };
+            let s = atmosphere::standard(altitude.si(), kind, offset.si())
+                .map_err(|e| e.to_string())?;
+            (s.temperature_k, s.pressure_pa)
+        }
+        Condition::Measured {
+            pressure,
+            temperature,
+        } => (temperature.si(), pressure.si()),
+    };
+    if !(t.is_finite() && t > 0.0 && p.is_finite() && p > 0.0) {
+        return Err("ambient pressure and temperature must be positive".into());
+    }
+    let air = match &a.humidity {
+        Some(q) => Composition::humid_air(q.si()).map_err(|e| e.to_string())?,
+        None => Composition::dry_air(),
+    };
+    let gas = model.gas(&air).map_err(|e| e.to_string())?;
+    let v = match &a.flight {
+        Flight::Mach(m) => {
+            let m = m.si();
+            if !(m.is_finite() && (0.0..=20.0).contains(&m)) {
+                return Err(format!("flight Mach number {m} must lie between 0 and 20"));
+            }
+            m * (gas.gamma(t).map_err(|e| e.to_string())? * gas.r() * t).sqrt()
+        }
+        Flight::Speed(v) => v.si(),
+    };
+    let flow = isentropic::totals(&gas, t, p, v).map_err(|e| format!("free stream: {e}"))?;
+    Ok(AmbientState { flow, air })
+}
+
+fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
+    let mut errors = Vec::new();
+    let mut g = Graph::default();
+    for (i, s) in book.stations.iter().enumerate() {
+        if g.station_index.insert(s.name.clone(), i).is_some() {
+            errors.push(BookError::Duplicate {
+                what: "stations",
+                name: s.name.clone(),
+            });
+        }
+    }
+    for (i, p) in book.processes.iter().enumerate() {
+        if g.process_index.insert(p.name.clone(), i).is_some() {
+            errors.push(BookError::Duplicate {
+                what: "processes",
+                name: p.name.clone(),
+            });
+        }
+    }
+    for (i, s) in book.shafts.iter().enumerate() {
+        if g.shaft_index.insert(s.name.clone(), i).is_some() {
+            errors.push(BookError::Duplicate {
+                what: "shafts",
+                name: s.name.clone(),
+            });
+        }
+    }
+    let n = book.processes.len();
+    let mut producer: Vec<Option<usize>> = vec![None; book.stations.len()];
+    g.inputs = vec![Vec::new(); n];
+    g.shaft_of = vec![None; n];
+    g.uses_ambient = vec![false; n];
+    let station = |whose: &str, name: &str, errors: &mut Vec<BookError>| -> Option<usize> {
+        let r = g.station_index.get(name).copied();
+        if r.is_none() {
+            errors.push(BookError::Unknown {
+                whose: whose.to_string(),
+                what: "station",
+                name: name.to_string(),
+            });
+        }
+        r
+    };
+    let mut outputs: Vec<Vec<usize>> = vec![Vec::new(); n];
+    for (i, p) in book.processes.iter().enumerate() {
+        let whose = format!("process \"{}\"", p.name);
+        let is_entry = matches!(p.kind, Kind::Entry(_));
+        match (&p.from, is_entry) {
+            (Some(_), true) => errors.push(BookError::Rule(format!(
+                "{whose} is an entry and takes its flow from the ambient block or its own givens: remove `from`"
+            ))),
+            (None, false) => errors.push(BookError::Rule(format!(
+                "{whose} needs an upstream station (`from`)"
+            ))),
+            (Some(f), false) => {
+                if let Some(s) = station(&whose, f, &mut errors) {
+                    g.inputs[i].push(s);
+                }
+            }
+            (None, true) => {}
+        }
+        if let Kind::Mixer(m) = &p.kind {
+            if let Some(s) = station(&whose, &m.secondary, &mut errors) {
+                g.inputs[i].push(s);
+            }
+        }
+        if let Some(s) = station(&whose, &p.to, &mut errors) {
+            outputs[i].push(s);
+        }
+        if let Kind::Split(sp) = &p.kind {
+            if let Some(s) = station(&whose, &sp.bypass, &mut errors) {
+                outputs[i].push(s);
+            }
+        }
+        let shaft = match &p.kind {
+            Kind::Compressor(c) => c.shaft.as_ref(),
+            Kind::Turbine(t) => t.shaft.as_ref(),
+            _ => None,
+        };
+        if let Some(sh) = shaft {
+            match g.shaft_index.get(sh) {
+                Some(&k) => g.shaft_of[i] = Some(k),
+                None => errors.push(BookError::Unknown {
+                    whose: whose.clone(),
+                    what: "shaft",
+                    name: sh.clone(),
+                }),
+            }
+        }
+        g.uses_ambient[i] = matches!(
+            p.kind,
+            Kind::Entry(_) | Kind::Nozzle(_) | Kind::Duct(crate::book::Duct::IntakeSchedule)
+        );
+    }
+    for (i, outs) in outputs.iter().enumerate() {
+        for &s in outs {
+            match producer[s] {
+                None => producer[s] = Some(i),
+                Some(j) => errors.push(BookError::Feed {
+                    station: book.stations[s].name.clone(),
+                    why: format!(
+                        "is fed by both \"{}\" and \"{}\"; each station has one process into it",
+                        book.processes[j].name, book.processes[i].name
+                    ),
+                }),
+            }
+        }
+    }
+    for (s, p) in producer.iter().enumerate() {
+        if p.is_none() {
+            errors.push(BookError::Feed {
+                station: book.stations[s].name.clone(),
+                why: "is fed by no process".into(),
+            });
+        }
+    }
+    // Shaft-work turbines depend on the other machines on their shaft.
+    let mut work_turbines: HashMap<usize, usize> = HashMap::new();
+    for (i, p) in book.processes.iter().enumerate() {
+        if let Kind::Turbine(t) = &p.kind {
+            if matches!(t.mode, Expansion::ShaftWork { .. }) {
+                match g.shaft_of[i] {
+                    None => errors.push(BookError::Rule(format!(
+                        "turbine \"{}\" takes its work from a shaft balance: name its shaft",
+                        p.name
+                    ))),
+                    Some(k) => {
+                        if let Some(other) = work_turbines.insert(k, i) {
+                            errors.push(BookError::Rule(format!(
+                                "shaft \"{}\" has two turbines whose work the balance sets (\"{}\" and \"{}\"); give one a pressure ratio",
+                                book.shafts[k].name, book.processes[other].name, p.name
+                            )));
+                        }
+                    }
+                }
+            }
+        }
+    }
+    if !errors.is_empty() {
+        return Err(errors);
+    }
+    g.producer = producer.into_iter().map(|p| p.unwrap_or(0)).collect();
+    g.deps = (0..n)
+        .map(|i| {
+            let mut d: Vec<usize> = g.inputs[i].iter().map(|&s| g.producer[s]).collect();
+            if let Some(k) = g.shaft_of[i] {
+                if work_turbines.get(&k) == Some(&i) {
+                    d.extend((0..n).filter(|&j| j != i && g.shaft_of[j] == Some(k)));
+                }
+            }
+            d.sort_unstable();
+            d.dedup();
+            d
+        })
+        .collect();
+    // Kahn's algorithm, keeping file order among ready nodes.
+    let mut indeg: Vec<usize> = g.deps.iter().map(|d| d.len()).collect();
+    let mut done = vec![false; n];
+    while g.order.len() < n {
+        let Some(next) = (0..n).find(|&i| !done[i] && indeg[i] == 0) else {
+            let stuck: Vec<String> = (0..n)
+                .filter(|&i| !done[i])
+                .map(|i| book.processes[i].name.clone())
+                .collect();
+            return Err(vec![BookError::Cycle(format!(
+                "{} depend on each other (a station feeding its own upstream, or a shaft-work turbine upstream of a compressor it drives); break the loop, or close it with a goal",
+                stuck.join(", ")
+            ))]);
+        };
+        done[next] = true;
+        g.order.push(next);
+        for i in 0..n {
+            if g.deps[i].contains(&next) {
+                indeg[i] -= 1;
+            }
+        }
+    }
+    Ok(g)
+}
+
+impl Engine {
+    /// Compile and evaluate a resolved workbook.
+    pub fn new(book: Workbook) -> Result<Engine, Vec<BookError>> {
+        let graph = compile(&book)?;
+        let n = book.processes.len();
+        let model = gas_model(&book.gas);
+        let ambient = match &model {
+            Ok(m) => ambient_state(&book, m),
+            Err(e) => Err(e.clone()),
+        };
+        let mut e = Engine {
+            graph,
+            model,
+            ambient,
+            nodes: vec![None; n],
+            dirty: vec![true; n],
+            goals: Vec::new(),
+            summary: Summary::default(),
+            evaluations: 0,
+            book,
+        };
+        e.recompute();
+        Ok(e)
+    }
+
+    /// The workbook as evaluated (goals may have varied some SI values).
+    pub fn book(&self) -> &Workbook {
+        &self.book
+    }
+
+    /// Number of process evaluations since the engine was built.
+    pub fn evaluations(&self) -> u64 {
+        self.evaluations
+    }
+
+    /// Replace the workbook after a structural edit: recompile and recompute.
+    pub fn replace_book(&mut self, book: Workbook) -> Result<(), Vec<BookError>> {
+        *self = Engine::new(book)?;
+        Ok(())
+    }
+
+    /// Set a given from typed text and recompute what depends on it.
+    /// A bad value is refused and the old one kept.
+    pub fn set_given(&mut self, path: &str, text: &str) -> Result<(), BookError> {
+        self.book.set_given(path, text)?;
+        self.touch(path);
+        self.recompute();
+        Ok(())
+    }
+
+    /// Set a given's SI value directly (sweeps, goals, uncertainty), keeping
+    /// its text; recompute what depends on it.
+    pub fn set_si(&mut self, path: &str, si: f64) -> Result<(), BookError> {
+        let mut found = false;
+        self.book.visit_givens(&mut |f| {
+            if f.path == path {
+                f.given.set_si(si);
+                found = true;
+            }
+        });
+        if !found {
+            return Err(BookError::Unknown {
+                whose: "the change".into(),
+                what: "given",
+                name: path.to_string(),
+            });
+        }
+        self.touch(path);
+        self.recompute();
+        Ok(())
+    }
+
+    /// Mark what reads the given at `path` as dirty.
+    fn touch(&mut self, path: &str) {
+        let Ok(p) = Path::parse(path) else {
+            return;
+        };
+        match p.scope {
+            Scope::Gas => {
+                self.model = gas_model(&self.book.gas);
+                self.refresh_ambient();
+                self.dirty.iter_mut().for_each(|d| *d = true);
+            }
+            Scope::Ambient => {
+                self.refresh_ambient();
+                for (i, d) in self.dirty.iter_mut().enumerate() {
+                    if self.graph.uses_ambient[i] {
+                        *d = true;
+                    }
+                }
+            }
+            Scope::Station => {
+                if let Some(&s) = self.graph.station_index.get(&p.name) {
+                    self.dirty[self.graph.producer[s]] = true;
+                }
+            }
+            Scope::Process => {
+                if let Some(&i) = self.graph.process_index.get(&p.name) {
+                    self.dirty[i] = true;
+                }
+            }
+            Scope::Shaft => {
+                if let Some(&k) = self.graph.shaft_index.get(&p.name) {
+                    for (i, d) in self.dirty.iter_mut().enumerate() {
+                        if self.graph.shaft_of[i] == Some(k) {
+                            *d = true;
+                        }
+                    }
+                }
+            }
+            Scope::Summary => {}
+        }
+    }
+
+    fn refresh_ambient(&mut self) {
+        self.ambient = match &self.model {
+            Ok(m) => ambient_state(&self.book, m),
+            Err(e) => Err(e.clone()),
+        };
+    }
+
+    fn recompute(&mut self) {
+        self.run_nodes();
+        if !self.book.goals.is_empty() {
+            self.solve_goals();
+        }
+    }
+
+    fn run_nodes(&mut self) {
+        let n = self.nodes.len();
+        let mut changed = vec![false; n];
+        for oi in 0..self.graph.order.len() {
+            let i = self.graph.order[oi];
+            let need = self.dirty[i]
+                || self.nodes[i].is_none()
+                || self.graph.deps[i].iter().any(|&d| changed[d]);
+            if !need {
+                continue;
+            }
+            let out = self.evaluate(i, &mut Tracer::off());
+            self.evaluations += 1;
+            self.dirty[i] = false;
+            if self.nodes[i].as_ref() != Some(&out) {
+                changed[i] = true;
+                self.nodes[i] = Some(out);
+            }
+        }
+        self.summary = self.build_summary();
+    }
+
+    /// Inputs of node `i`, or the name of the process that blocks it.
+    fn node_inputs(&self, i: usize) -> Result<Vec<&StationValue>, String> {
+        let mut v = Vec::with_capacity(2);
+        for &s in &self.graph.inputs[i] {
+            v.push(self.station_value(s)?);
+        }
+        Ok(v)
+    }
+
+    fn station_value(&self, s: usize) -> Result<&StationValue, String> {
+        let p = self.graph.producer[s];
+        match self.nodes[p].as_ref() {
+            Some(NodeOut::Done(r)) => {
+                if self.book.processes[p].to == self.book.stations[s].name {
+                    Ok(&r.out)
+                } else {
+                    r.out2.as_ref().ok_or_else(|| self.book.processes[p].name.clone())
+                }
+            }
+            Some(NodeOut::Blocked(by)) => Err(by.clone()),
+            _ => Err(self.book.processes[p].name.clone()),
+        }
+    }
+
+    fn shaft_need(&self, i: usize) -> Result<Option<f64>, String> {
+        let Some(k) = self.graph.shaft_of[i] else {
+            return Ok(None);
+        };
+        let sh = &self.book.shafts[k];
+        let eta_m = sh.mechanical_efficiency.si();
+        if !(eta_m.is_finite() && eta_m > 0.0 && eta_m <= 1.0) {
+            return Err(format!(
+                "shaft \"{}\": mechanical efficiency {} must lie above 0 and at most 1",
+                sh.name,
+                sh.mechanical_efficiency.text()
+            ));
+        }
+        let offtake = sh.offtake.as_ref().map_or(0.0, |g| g.si());
+        let mut absorbed = offtake;
+        let mut delivered = 0.0;
+        for &d in &self.graph.deps[i] {
+            if self.graph.shaft_of[d] != Some(k) {
+                continue;
+            }
+            match self.nodes[d].as_ref() {
+                Some(NodeOut::Done(r)) => {
+                    if r.power > 0.0 {
+                        absorbed += r.power;
+                    } else {
+                        delivered -= r.power;
+                    }
+                }
+                _ => return Err(format!("\0{}", self.book.processes[d].name)),
+            }
+        }
+        Ok(Some(absorbed / eta_m - delivered))
+    }
+
+    fn evaluate(&self, i: usize, tr: &mut Tracer) -> NodeOut {
+        let p = &self.book.processes[i];
+        let model = match &self.model {
+            Ok(m) => m,
+            Err(e) => return NodeOut::Failed(format!("gas settings: {e}")),
+        };
+        let ambient = match &self.ambient {
+            Ok(a) => a,
+            Err(e) => return NodeOut::Failed(format!("ambient: {e}")),
+        };
+        let inputs = match self.node_inputs(i) {
+            Ok(v) => v,
+            Err(by) => return NodeOut::Blocked(by),
+        };
+        let shaft_need = if matches!(
+            &p.kind,
+            Kind::Turbine(t) if matches!(t.mode, Expansion::ShaftWork { .. })
+        ) {
+            match self.shaft_need(i) {
+                Ok(v) => v,
+                Err(e) if e.starts_with('\0') => return NodeOut::Blocked(e[1..].to_string()),
+                Err(e) => return NodeOut::Failed(e),
+            }
+        } else {
+            None
+        };
+        let ctx = Ctx {
+            model,
+            ambient,
+            shaft_need,
+        };
+        let to = &self.book.stations[self.graph.station_index[&p.to]];
+        let to2 = match &p.kind {
+            Kind::Split(s) => self
+                .graph
+                .station_index
+                .get(&s.bypass)
+                .map(|&k| &self.book.stations[k]),
+            _ => None,
+        };
+        match compute::run(&ctx, p, &inputs, to, to2, tr) {
+            Ok(r) => NodeOut::Done(Box::new(r)),
+            Err(m) => NodeOut::Failed(m),
+        }
+    }
+
+    fn build_summary(&self) -> Summary {
+        let mut s = Summary::default();
+        let mut gross = 0.0;
+        let mut ram = 0.0;
+        let mut fuel = 0.0;
+        let mut heat = 0.0;
+        let mut air = 0.0;
+        let mut ke_out = 0.0;
+        let mut ke_in = 0.0;
+        let mut nozzles = 0;
+        for (i, n) in self.nodes.iter().enumerate() {
+            match n {
+                Some(NodeOut::Done(r)) => {
+                    gross += r.thrust;
+                    ram += r.ram_drag;
+                    fuel += r.fuel;
+                    heat += r.heat_release;
+                    air += r.air_in;
+                    ke_out += r.exit_ke;
+                    ke_in += r.entry_ke;
+                    if matches!(self.book.processes[i].kind, Kind::Nozzle(_)) {
+                        nozzles += 1;
+                    }
+                }
+                _ => return s,
+            }
+        }
+        let offtake: f64 = self
+            .book
+            .shafts
+            .iter()
+            .filter_map(|sh| sh.offtake.as_ref().map(|g| g.si()))
+            .sum();
+        s.air_flow = Some(air);
+        s.fuel = Some(fuel);
+        if nozzles > 0 {
+            let net = gross - ram;
+            s.thrust_gross = Some(gross);
+            s.ram_drag = Some(ram);
+            s.thrust_net = Some(net);
+            if air > 0.0 {
+                s.specific_thrust = Some(net / air);
+            }
+            if fuel > 0.0 && net > 0.0 {
+                s.tsfc = Some(fuel / net);
+            }
+            let v0 = self.ambient.as_ref().map_or(0.0, |a| a.flow.v);
+            let dke = ke_out - ke_in + offtake;
+            if heat > 0.0 {
+                s.eta_thermal = Some(dke / heat);
+                if v0 > 0.0 {
+                    s.eta_overall = Some(net * v0 / heat);
+                }
+            }
+            if v0 > 0.0 && dke > 0.0 {
+                s.eta_propulsive = Some(net * v0 / dke);
+            }
+        }
+        s
+    }
+
+    fn solve_goals(&mut self) {
+        let goals = self.book.goals.clone();
+        self.goals.clear();
+        for (k, g) in goals.iter().enumerate() {
+            let target = g.value.si();
+            let scale = target.abs().max(1e-12);
+            let mut last_problem: Option<String> = None;
+            let f = |eng: &mut Engine, x: f64| -> Result<f64, String> {
+                eng.set_si_quiet(&g.vary, x)?;
+                eng.run_nodes();
+                match eng.value(&g.target) {
+                    Ok(Some(v)) => Ok((v - target) / scale),
+                    Ok(None) => Err(format!(
+                        "goal {}: {} is not computed with {} = {x:.6} ({})",
+                        k + 1,
+                        g.target,
+                        g.vary,
+                        eng.problems()
+                            .first()
+                            .map_or(String::new(), |p| p.message.clone())
+                    )),
+                    Err(e) => Err(format!("goal {}: {e}", k + 1)),
+                }
+            };
+            let (lo, hi) = (g.low.si(), g.high.si());
+            let result = {
+                let eng = &mut *self;
+                solve::brent(|x| f(eng, x), lo, hi, 1e-12, 100)
+            };
+            let outcome = match result {
+                Ok(x) => {
+                    let _ = self.set_si_quiet(&g.vary, x);
+                    self.run_nodes();
+                    GoalOutcome {
+                        value: Some(x),
+                        problem: None,
+                    }
+                }
+                Err(e) => {
+                    let msg = match e {
+                        solve::SolveError::Inner(m) => m,
+                        solve::SolveError::Stopped(solve::Failure::NoRoot { at_lo, at_hi }) => {
+                            format!(
+                                "goal {}: {} cannot reach {} by varying {} between {} and {} (misses by {:.4e} and {:.4e} relative)",
+                                k + 1,
+                                g.target,
+                                g.value.text(),
+                                g.vary,
+                                g.low.text(),
+                                g.high.text(),
+                                at_lo,
+                                at_hi
+                            )
+                        }
+                        solve::SolveError::Stopped(solve::Failure::IterationCap {
+                            iterations,
+                            residual,
+                        }) => format!(
+                            "goal {}: no convergence after {iterations} trials (residual {residual:.3e})",
+                            k + 1
+                        ),
+                    };
+                    last_problem = Some(msg);
+                    GoalOutcome {
+                        value: None,
+                        problem: last_problem.clone(),
+                    }
+                }
+            };
+            let _ = last_problem;
+            self.goals.push(outcome);
+        }
+    }
+
+    fn set_si_quiet(&mut self, path: &str, si: f64) -> Result<(), String> {
+        let mut found = false;
+        self.book.visit_givens(&mut |f| {
+            if f.path == path {
+                f.given.set_si(si);
+                found = true;
+            }
+        });
+        if !found {
+            return Err(format!("no given at {path}"));
+        }
+        self.touch(path);
+        Ok(())
+    }
+
+    /// Every problem: processes that failed, goals that could not be met.
+    pub fn problems(&self) -> Vec<Problem> {
+        let mut v = Vec::new();
+        for &i in &self.graph.order {
+            if let Some(NodeOut::Failed(m)) = &self.nodes[i] {
+                let p = &self.book.processes[i];
+                v.push(Problem {
+                    place: format!("{} \"{}\"", compute::kind_name(&p.kind), p.name),
+                    message: m.clone(),
+                });
+            }
+        }
+        for (k, g) in self.goals.iter().enumerate() {
+            if let Some(m) = &g.problem {
+                v.push(Problem {
+                    place: format!("goal {}", k + 1),
+                    message: m.clone(),
+                });
+            }
+        }
+        v
+    }
+
+    /// Goal outcomes, in workbook order.
+    pub fn goal_outcomes(&self) -> &[GoalOutcome] {
+        &self.goals
+    }
+
+    /// The status of a station by index (file order).
+    pub fn station_status(&self, s: usize) -> StationStatus<'_> {
+        let p = self.graph.producer[s];
+        match self.nodes[p].as_ref() {
+            Some(NodeOut::Done(_)) => match self.station_value(s) {
+                Ok(v) => StationStatus::Ok(v),
+                Err(_) => StationStatus::Failed(&self.book.processes[p].name),
+            },
+            Some(NodeOut::Blocked(by)) => StationStatus::Blocked(by),
+            _ => StationStatus::Failed(&self.book.processes[p].name),
+        }
+    }
+
+    /// The computed value of a station by name.
+    pub fn station(&self, name: &str) -> Option<&StationValue> {
+        let &s = self.graph.station_index.get(name)?;
+        self.station_value(s).ok()
+    }
+
+    /// The result of a process by name.
+    pub fn process(&self, name: &str) -> Option<&ProcessResult> {
+        let &i = self.graph.process_index.get(name)?;
+        match self.nodes[i].as_ref() {
+            Some(NodeOut::Done(r)) => Some(r),
+            _ => None,
+        }
+    }
+
+    /// The process that produces a station (by station index).
+    pub fn producer_of(&self, s: usize) -> usize {
+        self.graph.producer[s]
+    }
+
+    /// The summary.
+    pub fn summary(&self) -> &Summary {
+        &self.summary
+    }
+
+    /// The ambient state, or why it could not be computed.
+    pub fn ambient(&self) -> Result<&AmbientState, &str> {
+        self.ambient.as_ref().map_err(|e| e.as_str())
+    }
+
+    /// The gas model, or why it could not be built.
+    pub fn model(&self) -> Result<&GasModel, &str> {
+        self.model.as_ref().map_err(|e| e.as_str())
+    }
+
+    /// Power balance of a shaft by name.
+    pub fn shaft(&self, name: &str) -> Option<ShaftBalance> {
+        let &k = self.graph.shaft_index.get(name)?;
+        let sh = &self.book.shafts[k];
+        let mut b = ShaftBalance {
+            offtake: sh.offtake.as_ref().map_or(0.0, |g| g.si()),
+            ..ShaftBalance::default()
+        };
+        for i in 0..self.nodes.len() {
+            if self.graph.shaft_of[i] != Some(k) {
+                continue;
+            }
+            match self.nodes[i].as_ref() {
+                Some(NodeOut::Done(r)) if r.power > 0.0 => b.compressor_power += r.power,
+                Some(NodeOut::Done(r)) => b.turbine_power -= r.power,
+                _ => return None,
+            }
+        }
+        b.imbalance =
+            b.turbine_power * sh.mechanical_efficiency.si() - b.compressor_power - b.offtake;
+        Some(b)
+    }
+
+    /// A derived station value by key (see `book::paths::STATION_KEYS`).
+    pub fn station_key(&self, v: &StationValue, key: &str) -> Option<f64> {
+        let f = v.flow.as_ref();
+        let gas = || self.model.as_ref().ok()?.gas(&v.comp).ok();
+        match key {
+            "tt" => Some(v.tt),
+            "pt" => Some(v.pt),
+            "w" => Some(v.w),
+            "far" => Some(v.comp.far),
+            "area" => v.area,
+            "t" => f.map(|f| f.t),
+            "p" => f.map(|f| f.p),
+            "rho" => f.map(|f| f.rho),
+            "v" => f.map(|f| f.v),
+            "a" => f.map(|f| f.a),
+            "mach" => f.map(|f| f.mach),
+            "q" => f.map(|f| f.dynamic_pressure()),
+            "wc" => Some(atmosphere::corrected_flow(v.w, v.tt, v.pt)),
+            "ht" => gas()?.sensible_h(v.tt).ok(),
+            "s" => {
+                let g = gas()?;
+                Some(
+                    g.phi(v.tt).ok()? - g.phi(T_REFERENCE).ok()?
+                        - g.r() * (v.pt / atmosphere::SEA_LEVEL_PRESSURE_PA).ln(),
+                )
+            }
+            "flow_function" => v.area.map(|a| v.w * v.tt.sqrt() / (a * v.pt)),
+            "gamma" => gas()?.gamma(f.map_or(v.tt, |f| f.t)).ok(),
+            _ => None,
+        }
+    }
+
+    /// A derived value by path; `Ok(None)` when it is not computed here.
+    pub fn value(&self, path: &str) -> Result<Option<f64>, PathError> {
+        let p = Path::parse(path)?;
+        let bad = || PathError(path.to_string());
+        Ok(match p.scope {
+            Scope::Station => {
+                if !STATION_KEYS.iter().any(|(k, _, _)| *k == p.key) {
+                    return Err(bad());
+                }
+                if !self.graph.station_index.contains_key(&p.name) {
+                    return Err(bad());
+                }
+                self.station(&p.name).and_then(|v| self.station_key(v, &p.key))
+            }
+            Scope::Process => {
+                if !self.graph.process_index.contains_key(&p.name) {
+                    return Err(bad());
+                }
+                self.process(&p.name).and_then(|r| r.figure(&p.key))
+            }
+            Scope::Summary => {
+                if !SUMMARY_KEYS.iter().any(|(k, _, _)| *k == p.key) {
+                    return Err(bad());
+                }
+                self.summary.get(&p.key)
+            }
+            Scope::Shaft => {
+                if !self.graph.shaft_index.contains_key(&p.name) {
+                    return Err(bad());
+                }
+                self.shaft(&p.name).and_then(|b| match p.key.as_str() {
+                    "compressor_power" => Some(b.compressor_power),
+                    "turbine_power" => Some(b.turbine_power),
+                    "imbalance" => Some(b.imbalance),
+                    _ => None,
+                })
+            }
+            Scope::Ambient => {
+                let a = self.ambient.as_ref().ok();
+                match p.key.as_str() {
+                    "t" => a.map(|a| a.flow.t),
+                    "p" => a.map(|a| a.flow.p),
+                    "v" => a.map(|a| a.flow.v),
+                    "mach" => a.map(|a| a.flow.mach),
+                    "tt" => a.map(|a| a.flow.tt),
+                    "pt" => a.map(|a| a.flow.pt),
+                    _ => {
+                        // A given of the ambient block.
+                        return self
+                            .book
+                            .givens()
+                            .into_iter()
+                            .find(|(gp, ..)| gp == path)
+                            .map(|(_, _, _, si)| Some(si))
+                            .ok_or_else(bad);
+                    }
+                }
+            }
+            Scope::Gas => return Err(bad()),
+        })
+    }
+
+    /// The relations and numbers behind a station's values.
+    pub fn explain(&self, station: &str) -> Result<Vec<Step>, String> {
+        let &s = self
+            .graph
+            .station_index
+            .get(station)
+            .ok_or_else(|| format!("no station named \"{station}\""))?;
+        let p = self.graph.producer[s];
+        let mut steps = Vec::new();
+        let out = self.evaluate(p, &mut Tracer::on(&mut steps));
+        match out {
+            NodeOut::Done(_) => {}
+            NodeOut::Failed(m) => return Err(m),
+            NodeOut::Blocked(by) => {
+                return Err(format!("blocked by a problem upstream in \"{by}\""));
+            }
+        }
+        if let Some(v) = self.station(station) {
+            let mut tr = Tracer::on(&mut steps);
+            let wc = atmosphere::corrected_flow(v.w, v.tt, v.pt);
+            explain::step!(tr, "Wc", wc, MassFlow, "corrected flow W sqrt(theta)/delta, theta = Tt/288.15 K, delta = pt/101325 Pa",
+                [("W", v.w, MassFlow), ("Tt", v.tt, Temperature), ("pt", v.pt, Pressure)]);
+            if let Some(s_val) = self.station_key(v, "s") {
+                explain::step!(tr, "s", s_val, SpecificHeat, "entropy from 298.15 K, 101325 Pa: s = phi(Tt) - phi(298.15) - R ln(pt/101325)",
+                    [("Tt", v.tt, Temperature), ("pt", v.pt, Pressure)]);
+            }
+        }
+        Ok(steps)
+    }
+
+    /// Station index by name.
+    pub fn station_index(&self, name: &str) -> Option<usize> {
+        self.graph.station_index.get(name).copied()
+    }
+
+    /// Stations in the order the flow passes them (producer order).
+    pub fn stations(&self) -> &[Station] {
+        &self.book.stations
+    }
+
+    /// Whether a station's named given is consumed as an input (for display).
+    pub fn entry_of(&self, s: usize) -> Option<&Entry> {
+        match &self.book.processes[self.graph.producer[s]].kind {
+            Kind::Entry(e) => Some(e),
+            _ => None,
+        }
+    }
+}
