@@ -29,4 +29,5 @@ pub mod format;
 pub mod gas;
 pub mod report;
 pub mod table;
+pub mod templates;
 pub mod units;

@@ -7,6 +7,12 @@
 //!   `check`/`fmt --check` found a difference.
 
 mod atmosphere;
+pub mod common;
+mod diff;
+pub mod eval;
+pub mod explain;
+mod files;
+mod sweep;
 mod table;
 
 use clap::{Parser, Subcommand, ValueEnum};
@@ -29,6 +35,20 @@ enum Command {
     Table(table::Args),
     /// Print the standard atmosphere (ISO 2533 / U.S. Standard Atmosphere 1976).
     Atmosphere(atmosphere::Args),
+    /// Evaluate a workbook: stations, component figures, summary, problems.
+    Eval(eval::Args),
+    /// Parse, evaluate and compare stored results (for hooks and CI).
+    Check(files::CheckArgs),
+    /// Givens that changed and derived values that moved between two workbooks.
+    Diff(diff::Args),
+    /// Derived values over a range of one given.
+    Sweep(sweep::Args),
+    /// The relations and numbers behind a station's values.
+    Explain(explain::Args),
+    /// Start a workbook from a demo template.
+    New(files::NewArgs),
+    /// Rewrite workbooks in canonical form; --check only reports.
+    Fmt(files::FmtArgs),
 }
 
 /// Output format shared by the commands that print rows.
@@ -106,6 +126,13 @@ pub fn run() -> ExitCode {
     let result = match cli.command {
         Command::Table(a) => table::run(a),
         Command::Atmosphere(a) => atmosphere::run(a),
+        Command::Eval(a) => eval::run(a),
+        Command::Check(a) => files::check(a),
+        Command::Diff(a) => diff::run(a),
+        Command::Sweep(a) => sweep::run(a),
+        Command::Explain(a) => explain::run(a),
+        Command::New(a) => files::new(a),
+        Command::Fmt(a) => files::fmt(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

@@ -20,6 +20,7 @@
 
 pub mod compute;
 pub mod explain;
+pub mod sweep;
 
 use crate::atmosphere::{self, AltitudeKind};
 use crate::book::paths::{STATION_KEYS, SUMMARY_KEYS, Scope};

@@ -1,0 +1,81 @@
+//! `stationwise sweep`: derived values over a range of one given.
+
+use super::common::{self, quantity, shown, unit_label};
+use super::{Failure, OutFormat, Units, print_table};
+use crate::engine::sweep;
+use crate::report::{Cell, Column, Table};
+use crate::units::{self, UnitSystem};
+use std::path::PathBuf;
+
+/// WHAT paths: a given is `station.NAME.FIELD`, `process.NAME.FIELD`,
+/// `shaft.NAME.FIELD` or `ambient.FIELD` (for example
+/// `process.compressor.pressure_ratio`, `ambient.flight_mach`); a reported
+/// value is `station.NAME.KEY` (tt, pt, t, p, rho, v, a, mach, w, area, far,
+/// ht, s, wc, q, flow_function, gamma), `process.NAME.FIGURE` (as `eval`
+/// lists them), `shaft.NAME.imbalance` or `summary.KEY` (thrust_net, tsfc,
+/// ...). FROM and TO take units ("1300 K:1600 K:6"); STEPS equal steps give
+/// STEPS + 1 rows.
+#[derive(Debug, clap::Args)]
+#[command(verbatim_doc_comment)]
+pub(super) struct Args {
+    /// The workbook file.
+    file: PathBuf,
+    /// The given to vary: PATH=FROM:TO:STEPS.
+    #[arg(long)]
+    vary: String,
+    /// Derived values to report, comma separated paths.
+    #[arg(long)]
+    report: String,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = OutFormat::Text)]
+    format: OutFormat,
+    /// Display units for text and CSV (JSON is SI).
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    units: Units,
+}
+
+pub(super) fn run(a: Args) -> Result<u8, Failure> {
+    let (book, engine) = common::open(&a.file)?;
+    let (path, range) = a
+        .vary
+        .split_once('=')
+        .ok_or_else(|| Failure::bad("--vary: use PATH=FROM:TO:STEPS"))?;
+    let path = path.trim();
+    let q = book
+        .givens()
+        .into_iter()
+        .find(|(p, ..)| p == path)
+        .map(|(_, q, ..)| q)
+        .ok_or_else(|| Failure::bad(format!("--vary: no given at \"{path}\" in this workbook")))?;
+    let parts: Vec<&str> = range.split(':').collect();
+    let [from, to, steps] = parts.as_slice() else {
+        return Err(Failure::bad("--vary: use PATH=FROM:TO:STEPS"));
+    };
+    let from = units::parse(from, q, "--vary FROM").map_err(Failure::bad)?.si;
+    let to = units::parse(to, q, "--vary TO").map_err(Failure::bad)?.si;
+    let steps: usize = steps
+        .trim()
+        .parse()
+        .map_err(|_| Failure::bad(format!("--vary: STEPS \"{steps}\" is not a whole number")))?;
+    if steps > 10_000_000 {
+        return Err(Failure::bad("--vary: at most 10 000 000 steps"));
+    }
+    let report: Vec<String> = a.report.split(',').map(|s| s.trim().to_string()).filter(|s| !s.is_empty()).collect();
+    let values = sweep::linspace(from, to, steps);
+    let rows = sweep::run(&engine, path, &values, &report).map_err(Failure::bad)?;
+    let system: UnitSystem = if a.format == OutFormat::Json { UnitSystem::Si } else { a.units.into() };
+    let mut cols = vec![Column::new(path, path, &unit_label(q, system))];
+    for r in &report {
+        cols.push(Column::new(r, r, &unit_label(quantity(r), system)));
+    }
+    let mut t = Table::new(cols);
+    for (x, vals) in rows {
+        let mut row = vec![Cell::from(shown(x, q, system))];
+        for (r, v) in report.iter().zip(vals) {
+            row.push(Cell::from(v.map(|v| shown(v, quantity(r), system))));
+        }
+        t.rows.push(row);
+    }
+    print_table(&t, a.format)?;
+    Ok(0)
+}
