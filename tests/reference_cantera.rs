@@ -283,7 +283,8 @@ fn shock_points(keep: impl Fn(f64, f64) -> bool) -> usize {
 
 /// T1 1200 K, M1 5: T2 5497 K and Tt 5604 K lie inside the data range, but
 /// the Rayleigh line between the solution and the trivial root peaks above
-/// 6000 K (at about 10300 K), where our bracket search evaluates h.
+/// 6000 K (to about 10540 K), and our bracket search evaluates h there (at
+/// 10338 K), so the range error escapes instead of the solution.
 fn hot_hypersonic(t1: f64, m1: f64) -> bool {
     t1 == 1200.0 && m1 == 5.0
 }
