@@ -9,14 +9,46 @@ pub const TEMPLATES: &[(&str, &str, &str)] = &[
         "single-spool turbojet on a sea-level static stand, shaft balance",
         include_str!("../sheets/turbojet.ron"),
     ),
+    (
+        "turbofan",
+        "two-spool separate-flow turbofan at Mach 0.8 cruise, two shaft balances",
+        include_str!("../sheets/turbofan.ron"),
+    ),
+    (
+        "ramjet",
+        "ramjet at Mach 2.5, normal-shock intake, convergent-divergent nozzle",
+        include_str!("../sheets/ramjet.ron"),
+    ),
+    (
+        "tunnel",
+        "blow-down supersonic wind tunnel: choked reservoir, Mach 2 test section, diffuser shock",
+        include_str!("../sheets/tunnel.ron"),
+    ),
+    (
+        "compressor-rig",
+        "compressor rig reduced from inlet and exit rakes: measured efficiency",
+        include_str!("../sheets/compressor-rig.ron"),
+    ),
+    (
+        "combustor-rig",
+        "combustor rig reduced from measured exit temperature and fuel flow",
+        include_str!("../sheets/combustor-rig.ron"),
+    ),
 ];
 
 /// The text of a template by name.
 pub fn get(name: &str) -> Option<&'static str> {
-    TEMPLATES.iter().find(|(n, _, _)| *n == name).map(|(_, _, t)| *t)
+    TEMPLATES
+        .iter()
+        .find(|(n, _, _)| *n == name)
+        .map(|(_, _, t)| *t)
 }
 
 /// Template names, comma separated.
 pub fn names() -> String {
-    TEMPLATES.iter().map(|(n, _, _)| *n).collect::<Vec<_>>().join(", ")
+    TEMPLATES
+        .iter()
+        .map(|(n, _, _)| *n)
+        .collect::<Vec<_>>()
+        .join(", ")
 }

@@ -850,7 +850,8 @@ fn nozzle(
     }
     let mut r = ProcessResult::new(out);
     r.thrust = thrust;
-    r.exit_ke = 0.5 * i.w * v * v;
+    // Kinetic energy at the effective jet velocity F/W, so pressure thrust counts.
+    r.exit_ke = 0.5 * thrust * thrust / i.w;
     r.figures = vec![
         ("thrust", thrust),
         ("area", area_eff / cd),
