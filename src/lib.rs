@@ -11,6 +11,8 @@
 //! * [`engine`]: dependency graph, incremental recompute, problems, goals,
 //!   explanations. Uses `book`, `flow`, `gas`, `atmosphere`.
 //! * [`format`]: the RON workbook file (versioned, canonical, atomic saves).
+//! * [`present`]: presentation shared by the front ends (values with units,
+//!   station tables, explanation text).
 //! * [`table`]: flow tables (rows of relation values) for the command line.
 //! * [`report`]: tables of results and their text, CSV and JSON printers.
 //!
@@ -27,6 +29,7 @@ pub mod engine;
 pub mod flow;
 pub mod format;
 pub mod gas;
+pub mod present;
 pub mod report;
 pub mod table;
 pub mod templates;

@@ -44,7 +44,11 @@ pub enum Cell {
 
 impl From<f64> for Cell {
     fn from(v: f64) -> Cell {
-        if v.is_finite() { Cell::Num(v) } else { Cell::Empty }
+        if v.is_finite() {
+            Cell::Num(v)
+        } else {
+            Cell::Empty
+        }
     }
 }
 impl From<Option<f64>> for Cell {

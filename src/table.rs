@@ -6,11 +6,11 @@
 //! pressure ratio) that are turned into Mach numbers first. The keys of each
 //! relation's columns are part of the command-line contract (JSON and CSV).
 
+use crate::flow::{Branch, FlowState};
 use crate::flow::{
     FlowError, fanno, isentropic, rayleigh,
     shock::{self, Strength},
 };
-use crate::flow::{Branch, FlowState};
 use crate::gas::{Gas, Thermo};
 use crate::report::{Cell, Column, Table};
 

@@ -297,7 +297,6 @@ fn normal_shocks_match_cantera() {
 }
 
 #[test]
-#[ignore = "src bug: flow::shock::general::jump propagates OutOfRange from its upper-bracket search (see hot_hypersonic)"]
 fn normal_shock_with_rayleigh_peak_above_data_range_matches_cantera() {
     // Cantera 3.2.0 (tests/data/cantera_normal_shock.json), T1 1200 K, M1 5.
     assert_eq!(shock_points(hot_hypersonic), 1);

@@ -711,9 +711,7 @@ impl Workbook {
                     q("pt", Quantity::Pressure, pt);
                     q("throat_area", Quantity::Area, throat_area);
                 }
-                Kind::Duct(Duct::Recovery { recovery }) => {
-                    q("recovery", Quantity::Ratio, recovery)
-                }
+                Kind::Duct(Duct::Recovery { recovery }) => q("recovery", Quantity::Ratio, recovery),
                 Kind::Duct(Duct::LossCoefficient { k }) => q("k", Quantity::Ratio, k),
                 Kind::Duct(Duct::Friction {
                     length,
@@ -810,8 +808,7 @@ impl Workbook {
         });
         // Goal values take the quantity of their target.
         for (i, goal) in self.goals.iter_mut().enumerate() {
-            let q = paths::quantity_of_derived(&goal.target)
-                .unwrap_or(Quantity::Ratio);
+            let q = paths::quantity_of_derived(&goal.target).unwrap_or(Quantity::Ratio);
             if let Err(e) = goal.value.resolve(q, &format!("goal {} value", i + 1)) {
                 errors.push(e.into());
             }

@@ -112,7 +112,11 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 10] = [
     ("thrust_net", "net thrust", Quantity::Force),
     ("fuel", "fuel flow", Quantity::MassFlow),
     ("tsfc", "TSFC", Quantity::ThrustSpecificFuelConsumption),
-    ("specific_thrust", "specific thrust", Quantity::SpecificThrust),
+    (
+        "specific_thrust",
+        "specific thrust",
+        Quantity::SpecificThrust,
+    ),
     ("eta_thermal", "thermal efficiency", Quantity::Ratio),
     ("eta_propulsive", "propulsive efficiency", Quantity::Ratio),
     ("eta_overall", "overall efficiency", Quantity::Ratio),
@@ -138,7 +142,11 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 36] = [
     ("exit_tt", "exit Tt", Quantity::Temperature),
     ("efficiency", "combustion efficiency", Quantity::Ratio),
     ("heat", "heat added", Quantity::SpecificEnergy),
-    ("max_heat", "heat to thermal choke", Quantity::SpecificEnergy),
+    (
+        "max_heat",
+        "heat to thermal choke",
+        Quantity::SpecificEnergy,
+    ),
     ("mach_in", "inlet Mach", Quantity::Mach),
     ("mach_out", "exit Mach", Quantity::Mach),
     ("beta", "wave angle", Quantity::Angle),
@@ -173,7 +181,10 @@ pub fn quantity_of_derived(path: &str) -> Option<Quantity> {
         ],
         _ => return None,
     };
-    table.iter().find(|(k, _, _)| *k == p.key).map(|(_, _, q)| *q)
+    table
+        .iter()
+        .find(|(k, _, _)| *k == p.key)
+        .map(|(_, _, q)| *q)
 }
 
 #[cfg(test)]
@@ -183,7 +194,10 @@ mod tests {
     #[test]
     fn names_with_spaces_and_dots() {
         let p = Path::parse("station.test section.mach").unwrap();
-        assert_eq!((p.scope, p.name.as_str(), p.key.as_str()), (Scope::Station, "test section", "mach"));
+        assert_eq!(
+            (p.scope, p.name.as_str(), p.key.as_str()),
+            (Scope::Station, "test section", "mach")
+        );
         let p = Path::parse("process.stage 1.5.pressure_ratio").unwrap();
         assert_eq!(p.name, "stage 1.5");
         assert!(Path::parse("summary.thrust_net").is_ok());

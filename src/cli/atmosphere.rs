@@ -55,11 +55,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let mut unit_list = Vec::new();
     for (name, q) in qs {
         let u = unit_of(q).ok_or_else(|| Failure::bad("internal: unit table incomplete"))?;
-        let key_unit = u
-            .symbol
-            .to_lowercase()
-            .replace('/', "_")
-            .replace("deg", "");
+        let key_unit = u.symbol.to_lowercase().replace('/', "_").replace("deg", "");
         cols.push(Column::new(&format!("{name}_{key_unit}"), name, u.symbol));
         unit_list.push(u);
     }

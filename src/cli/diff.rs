@@ -104,7 +104,10 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             "structure": structure,
             "derived": moved.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
         });
-        println!("{}", serde_json::to_string_pretty(&v).map_err(|e| Failure::bad(e.to_string()))?);
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&v).map_err(|e| Failure::bad(e.to_string()))?
+        );
     } else {
         let show = |t: &Option<String>| t.clone().unwrap_or_else(|| "(none)".into());
         if givens.is_empty() && structure.is_empty() && moved.is_empty() {
@@ -123,17 +126,30 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             }
         }
         if !moved.is_empty() {
-            println!("derived values that moved (beyond {} relative)", a.tolerance);
+            println!(
+                "derived values that moved (beyond {} relative)",
+                a.tolerance
+            );
             for (p, x, y) in &moved {
                 let q = quantity(p);
-                let f = |v: &Option<f64>| v.map_or("(not computed)".to_string(), |v| with_unit(v, q, system));
+                let f = |v: &Option<f64>| {
+                    v.map_or("(not computed)".to_string(), |v| with_unit(v, q, system))
+                };
                 let rel = match (x, y) {
-                    (Some(x), Some(y)) if *x != 0.0 => format!(" ({:+.4} %)", (y - x) / x.abs() * 100.0),
+                    (Some(x), Some(y)) if *x != 0.0 => {
+                        format!(" ({:+.4} %)", (y - x) / x.abs() * 100.0)
+                    }
                     _ => String::new(),
                 };
                 println!("  {p}: {} -> {}{rel}", f(x), f(y));
             }
         }
     }
-    Ok(if givens.is_empty() && structure.is_empty() && moved.is_empty() { 0 } else { 2 })
+    Ok(
+        if givens.is_empty() && structure.is_empty() && moved.is_empty() {
+            0
+        } else {
+            2
+        },
+    )
 }

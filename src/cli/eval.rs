@@ -56,7 +56,10 @@ pub fn to_json(engine: &Engine) -> serde_json::Value {
     }
     let mut summary = serde_json::Map::new();
     for (k, _, _) in SUMMARY_KEYS {
-        summary.insert(summary_json_key(k), cell_json(&Cell::from(engine.summary().get(k))));
+        summary.insert(
+            summary_json_key(k),
+            cell_json(&Cell::from(engine.summary().get(k))),
+        );
     }
     let mut processes = Vec::new();
     for p in &engine.book().processes {
@@ -93,11 +96,16 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
     match (engine.model(), engine.ambient()) {
         (Ok(m), Ok(a)) => {
             let gas = match m {
-                crate::gas::GasModel::Thermal => "thermally perfect (NASA Glenn polynomials)".to_string(),
+                crate::gas::GasModel::Thermal => {
+                    "thermally perfect (NASA Glenn polynomials)".to_string()
+                }
                 crate::gas::GasModel::Perfect { cold, hot } => format!(
                     "calorically perfect, gamma {}{}",
                     cold.gamma_value(),
-                    hot.map_or(String::new(), |h| format!(", hot section {}", h.gamma_value()))
+                    hot.map_or(String::new(), |h| format!(
+                        ", hot section {}",
+                        h.gamma_value()
+                    ))
                 ),
             };
             writeln!(
@@ -147,7 +155,15 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
     for (i, g) in engine.goal_outcomes().iter().enumerate() {
         if let Some(v) = g.value {
             let goal = &b.goals[i];
-            writeln!(out, "  goal {}: {} = {} gives {} = {}", i + 1, goal.vary, report::sig(v, 7), goal.target, goal.value.text())?;
+            writeln!(
+                out,
+                "  goal {}: {} = {} gives {} = {}",
+                i + 1,
+                goal.vary,
+                report::sig(v, 7),
+                goal.target,
+                goal.value.text()
+            )?;
         }
     }
     let summary = summary_entries(engine);
@@ -176,15 +192,26 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
     match a.format {
         OutFormat::Json => {
-            serde_json::to_writer_pretty(&mut out, &to_json(&engine)).map_err(|e| Failure::bad(e.to_string()))?;
+            serde_json::to_writer_pretty(&mut out, &to_json(&engine))
+                .map_err(|e| Failure::bad(e.to_string()))?;
             writeln!(out).map_err(io)?;
         }
         OutFormat::Csv => {
-            report::CsvPrinter.print(&stations_table(&engine, system), &mut out).map_err(io)?;
+            report::CsvPrinter
+                .print(&stations_table(&engine, system), &mut out)
+                .map_err(io)?;
             writeln!(out).map_err(io)?;
-            let mut t = Table::new(vec![Column::new("summary", "summary", ""), Column::new("value", "value", ""), Column::new("unit", "unit", "")]);
+            let mut t = Table::new(vec![
+                Column::new("summary", "summary", ""),
+                Column::new("value", "value", ""),
+                Column::new("unit", "unit", ""),
+            ]);
             for (k, _, v, q) in summary_entries(&engine) {
-                t.rows.push(vec![Cell::from(k), Cell::from(common::shown(v, q, system)), Cell::from(common::unit_label(q, system))]);
+                t.rows.push(vec![
+                    Cell::from(k),
+                    Cell::from(common::shown(v, q, system)),
+                    Cell::from(common::unit_label(q, system)),
+                ]);
             }
             report::CsvPrinter.print(&t, &mut out).map_err(io)?;
         }

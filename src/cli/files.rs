@@ -77,7 +77,10 @@ pub(super) fn fmt(a: FmtArgs) -> Result<u8, Failure> {
             continue;
         }
         if a.check {
-            println!("{}: not in canonical form (run stationwise fmt)", f.display());
+            println!(
+                "{}: not in canonical form (run stationwise fmt)",
+                f.display()
+            );
             code = code.max(2);
         } else if let Err(e) = format::write_atomic_with(f, canon.as_bytes(), || Ok(())) {
             eprintln!("{}: cannot write: {e}", f.display());
@@ -117,7 +120,10 @@ pub(super) fn new(a: NewArgs) -> Result<u8, Failure> {
         return Err(Failure::bad("give --template NAME and a FILE"));
     };
     let text = crate::templates::get(&name).ok_or_else(|| {
-        Failure::bad(format!("no template \"{name}\"; templates: {}", crate::templates::names()))
+        Failure::bad(format!(
+            "no template \"{name}\"; templates: {}",
+            crate::templates::names()
+        ))
     })?;
     if file.exists() && !a.force {
         return Err(Failure::bad(format!(

@@ -110,10 +110,7 @@ impl Failure {
 }
 
 /// Print a table to stdout in a format.
-pub(crate) fn print_table(
-    t: &crate::report::Table,
-    format: OutFormat,
-) -> Result<(), Failure> {
+pub(crate) fn print_table(t: &crate::report::Table, format: OutFormat) -> Result<(), Failure> {
     let mut out = std::io::stdout().lock();
     crate::report::printer(format.into())
         .print(t, &mut out)

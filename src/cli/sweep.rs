@@ -51,7 +51,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let [from, to, steps] = parts.as_slice() else {
         return Err(Failure::bad("--vary: use PATH=FROM:TO:STEPS"));
     };
-    let from = units::parse(from, q, "--vary FROM").map_err(Failure::bad)?.si;
+    let from = units::parse(from, q, "--vary FROM")
+        .map_err(Failure::bad)?
+        .si;
     let to = units::parse(to, q, "--vary TO").map_err(Failure::bad)?.si;
     let steps: usize = steps
         .trim()
@@ -60,10 +62,19 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     if steps > 10_000_000 {
         return Err(Failure::bad("--vary: at most 10 000 000 steps"));
     }
-    let report: Vec<String> = a.report.split(',').map(|s| s.trim().to_string()).filter(|s| !s.is_empty()).collect();
+    let report: Vec<String> = a
+        .report
+        .split(',')
+        .map(|s| s.trim().to_string())
+        .filter(|s| !s.is_empty())
+        .collect();
     let values = sweep::linspace(from, to, steps);
     let rows = sweep::run(&engine, path, &values, &report).map_err(Failure::bad)?;
-    let system: UnitSystem = if a.format == OutFormat::Json { UnitSystem::Si } else { a.units.into() };
+    let system: UnitSystem = if a.format == OutFormat::Json {
+        UnitSystem::Si
+    } else {
+        a.units.into()
+    };
     let mut cols = vec![Column::new(path, path, &unit_label(q, system))];
     for r in &report {
         cols.push(Column::new(r, r, &unit_label(quantity(r), system)));

@@ -81,7 +81,9 @@ pub(super) struct Args {
 }
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
-    let list = |flag: &str, s: &str| table::parse_list(s).map_err(|e| Failure::bad(format!("{flag}: {e}")));
+    let list = |flag: &str, s: &str| {
+        table::parse_list(s).map_err(|e| Failure::bad(format!("{flag}: {e}")))
+    };
     let rows = if let Some(m) = &a.mach {
         Rows::Mach(list("--mach", m)?)
     } else if let Some(r) = &a.area_ratio {
@@ -102,7 +104,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         (None, Some(GasArg::Air)) => Gas::Thermal(Composition::dry_air().mixture()),
         (None, Some(GasArg::Products)) => {
             let fuel = Fuel::new(a.hc).map_err(Failure::bad)?;
-            let c = Composition::dry_air().burnt(a.far, fuel).map_err(Failure::bad)?;
+            let c = Composition::dry_air()
+                .burnt(a.far, fuel)
+                .map_err(Failure::bad)?;
             Gas::Thermal(c.mixture())
         }
         (None, None) => Gas::Perfect(PerfectGas::AIR),

@@ -62,7 +62,10 @@ impl ProcessResult {
     }
     /// A figure by key.
     pub fn figure(&self, key: &str) -> Option<f64> {
-        self.figures.iter().find(|(k, _)| *k == key).map(|(_, v)| *v)
+        self.figures
+            .iter()
+            .find(|(k, _)| *k == key)
+            .map(|(_, v)| *v)
     }
 }
 
@@ -133,9 +136,8 @@ fn need_statics<'a>(s: &'a StationValue, station: &str, why: &str) -> Res<&'a Fl
 }
 
 fn measured<'a>(g: &'a Option<Given>, station: &str, what: &str) -> Res<&'a Given> {
-    g.as_ref().ok_or_else(|| {
-        format!("the measured mode needs {what} given on station \"{station}\"")
-    })
+    g.as_ref()
+        .ok_or_else(|| format!("the measured mode needs {what} given on station \"{station}\""))
 }
 
 /// Finish a downstream station: apply its static fix, or take the state the
@@ -162,37 +164,71 @@ pub fn finish(
         }
         (None, Some(f)) => Some(f),
         (None, None) => None,
-        (Some(fix), None) => Some(
-            match fix {
-                Statics::Mach(m) => {
-                    let s = isentropic::from_mach(gas, tt, pt, m.si()).map_err(fe)?;
-                    step!(tr, "T", s.t, Temperature,
-                        "static temperature from h(Tt) = h(T) + V^2/2 with V = M a, a^2 = gamma(T) R T",
-                        [("Tt", tt, Temperature), ("M", m.si(), Mach)]);
-                    s
-                }
-                Statics::Pressure(p) => {
-                    let s = isentropic::from_pressure(gas, tt, pt, p.si()).map_err(fe)?;
-                    step!(tr, "M", s.mach, Mach,
-                        "isentrope phi(T) = phi(Tt) + R ln(p/pt), then V^2 = 2 (h(Tt) - h(T)), M = V/a",
-                        [("Tt", tt, Temperature), ("pt", pt, Pressure), ("p", p.si(), Pressure)]);
-                    s
-                }
-                Statics::Velocity(v) => {
-                    let s = isentropic::from_velocity(gas, tt, pt, v.si()).map_err(fe)?;
-                    step!(tr, "T", s.t, Temperature, "h(T) = h(Tt) - V^2/2",
-                        [("Tt", tt, Temperature), ("V", v.si(), Velocity)]);
-                    s
-                }
-                Statics::Area(a) => {
-                    let s = isentropic::from_flow(gas, tt, pt, w, a.si(), branch).map_err(fe)?;
-                    step!(tr, "M", s.mach, Mach,
-                        format!("mass flux W/A = rho V on the {} branch of the isentrope", match branch { Branch::Subsonic => "subsonic", Branch::Supersonic => "supersonic" }),
-                        [("W", w, MassFlow), ("A", a.si(), Area), ("Tt", tt, Temperature), ("pt", pt, Pressure)]);
-                    s
-                }
-            },
-        ),
+        (Some(fix), None) => Some(match fix {
+            Statics::Mach(m) => {
+                let s = isentropic::from_mach(gas, tt, pt, m.si()).map_err(fe)?;
+                step!(
+                    tr,
+                    "T",
+                    s.t,
+                    Temperature,
+                    "static temperature from h(Tt) = h(T) + V^2/2 with V = M a, a^2 = gamma(T) R T",
+                    [("Tt", tt, Temperature), ("M", m.si(), Mach)]
+                );
+                s
+            }
+            Statics::Pressure(p) => {
+                let s = isentropic::from_pressure(gas, tt, pt, p.si()).map_err(fe)?;
+                step!(
+                    tr,
+                    "M",
+                    s.mach,
+                    Mach,
+                    "isentrope phi(T) = phi(Tt) + R ln(p/pt), then V^2 = 2 (h(Tt) - h(T)), M = V/a",
+                    [
+                        ("Tt", tt, Temperature),
+                        ("pt", pt, Pressure),
+                        ("p", p.si(), Pressure)
+                    ]
+                );
+                s
+            }
+            Statics::Velocity(v) => {
+                let s = isentropic::from_velocity(gas, tt, pt, v.si()).map_err(fe)?;
+                step!(
+                    tr,
+                    "T",
+                    s.t,
+                    Temperature,
+                    "h(T) = h(Tt) - V^2/2",
+                    [("Tt", tt, Temperature), ("V", v.si(), Velocity)]
+                );
+                s
+            }
+            Statics::Area(a) => {
+                let s = isentropic::from_flow(gas, tt, pt, w, a.si(), branch).map_err(fe)?;
+                step!(
+                    tr,
+                    "M",
+                    s.mach,
+                    Mach,
+                    format!(
+                        "mass flux W/A = rho V on the {} branch of the isentrope",
+                        match branch {
+                            Branch::Subsonic => "subsonic",
+                            Branch::Supersonic => "supersonic",
+                        }
+                    ),
+                    [
+                        ("W", w, MassFlow),
+                        ("A", a.si(), Area),
+                        ("Tt", tt, Temperature),
+                        ("pt", pt, Pressure)
+                    ]
+                );
+                s
+            }
+        }),
     };
     let area = match (&station.statics, &flow) {
         (Some(Statics::Area(a)), _) => Some(a.si()),
@@ -200,12 +236,51 @@ pub fn finish(
         _ => None,
     };
     if let Some(f) = &flow {
-        step!(tr, "p", f.p, Pressure, "p = pt exp((phi(T) - phi(Tt))/R) (isentropic stagnation)",
-            [("pt", pt, Pressure), ("T", f.t, Temperature), ("Tt", tt, Temperature)]);
-        step!(tr, "rho", f.rho, Density, "rho = p/(R T)", [("p", f.p, Pressure), ("T", f.t, Temperature), ("R", gas.r(), SpecificHeat)]);
-        step!(tr, "V", f.v, Velocity, "V = sqrt(2 (h(Tt) - h(T)))", [("Tt", tt, Temperature), ("T", f.t, Temperature)]);
+        step!(
+            tr,
+            "p",
+            f.p,
+            Pressure,
+            "p = pt exp((phi(T) - phi(Tt))/R) (isentropic stagnation)",
+            [
+                ("pt", pt, Pressure),
+                ("T", f.t, Temperature),
+                ("Tt", tt, Temperature)
+            ]
+        );
+        step!(
+            tr,
+            "rho",
+            f.rho,
+            Density,
+            "rho = p/(R T)",
+            [
+                ("p", f.p, Pressure),
+                ("T", f.t, Temperature),
+                ("R", gas.r(), SpecificHeat)
+            ]
+        );
+        step!(
+            tr,
+            "V",
+            f.v,
+            Velocity,
+            "V = sqrt(2 (h(Tt) - h(T)))",
+            [("Tt", tt, Temperature), ("T", f.t, Temperature)]
+        );
         if let Some(a) = area {
-            step!(tr, "A", a, Area, "A = W/(rho V)", [("W", w, MassFlow), ("rho", f.rho, Density), ("V", f.v, Velocity)]);
+            step!(
+                tr,
+                "A",
+                a,
+                Area,
+                "A = W/(rho V)",
+                [
+                    ("W", w, MassFlow),
+                    ("rho", f.rho, Density),
+                    ("V", f.v, Velocity)
+                ]
+            );
         }
     }
     Ok(StationValue {
@@ -263,9 +338,25 @@ pub fn run(
             let up = need_statics(s, from_name, "an oblique shock")?;
             let theta = o.deflection.si();
             let ob = shock::oblique(&g, up, theta, o.strength).map_err(fe)?;
-            step!(tr, "beta", ob.beta, Angle, "theta-beta-M relation: tan(beta - theta) = tan(beta) rho1/rho2 with the normal shock on M1 sin(beta)",
-                [("M1", up.mach, Mach), ("theta", theta, Angle)]);
-            let out = finish(&g, to, s.w, s.tt, ob.down.pt, s.comp, Some(ob.down), "oblique shock", tr)?;
+            step!(
+                tr,
+                "beta",
+                ob.beta,
+                Angle,
+                "theta-beta-M relation: tan(beta - theta) = tan(beta) rho1/rho2 with the normal shock on M1 sin(beta)",
+                [("M1", up.mach, Mach), ("theta", theta, Angle)]
+            );
+            let out = finish(
+                &g,
+                to,
+                s.w,
+                s.tt,
+                ob.down.pt,
+                s.comp,
+                Some(ob.down),
+                "oblique shock",
+                tr,
+            )?;
             let mut r = ProcessResult::new(out);
             r.figures = vec![
                 ("beta", ob.beta),
@@ -284,9 +375,26 @@ pub fn run(
             let to2 = to2.ok_or_else(|| format!("bypass station \"{}\" is missing", s.bypass))?;
             let g = gas(ctx, &i.comp)?;
             let wc = i.w / (1.0 + bpr);
-            step!(tr, "W core", wc, MassFlow, "W_core = W/(1 + BPR)", [("W", i.w, MassFlow), ("BPR", bpr, Ratio)]);
+            step!(
+                tr,
+                "W core",
+                wc,
+                MassFlow,
+                "W_core = W/(1 + BPR)",
+                [("W", i.w, MassFlow), ("BPR", bpr, Ratio)]
+            );
             let core = finish(&g, to, wc, i.tt, i.pt, i.comp, None, "split", tr)?;
-            let byp = finish(&g, to2, i.w - wc, i.tt, i.pt, i.comp, None, "split", &mut Tracer::off())?;
+            let byp = finish(
+                &g,
+                to2,
+                i.w - wc,
+                i.tt,
+                i.pt,
+                i.comp,
+                None,
+                "split",
+                &mut Tracer::off(),
+            )?;
             let mut r = ProcessResult::new(core);
             r.out2 = Some(byp);
             r.figures = vec![("bypass_ratio", bpr), ("w", i.w)];
@@ -341,12 +449,42 @@ fn entry(ctx: &Ctx, e: &Entry, to: &Station, tr: &mut Tracer) -> Res<ProcessResu
         Entry::Freestream { w } => {
             let w = positive(w, "captured mass flow")?;
             let a = ctx.ambient;
-            step!(tr, "Tt", a.flow.tt, Temperature, "h(Tt) = h(T0) + V0^2/2 (free stream brought to rest adiabatically)",
-                [("T0", a.flow.t, Temperature), ("V0", a.flow.v, Velocity)]);
-            step!(tr, "pt", a.flow.pt, Pressure, "pt = p0 exp((phi(Tt) - phi(T0))/R) (isentropic)",
-                [("p0", a.flow.p, Pressure), ("Tt", a.flow.tt, Temperature), ("T0", a.flow.t, Temperature)]);
-            let intrinsic = if to.statics.is_none() { Some(a.flow) } else { None };
-            let out = finish(&g, to, w, a.flow.tt, a.flow.pt, air, intrinsic, "free stream", tr)?;
+            step!(
+                tr,
+                "Tt",
+                a.flow.tt,
+                Temperature,
+                "h(Tt) = h(T0) + V0^2/2 (free stream brought to rest adiabatically)",
+                [("T0", a.flow.t, Temperature), ("V0", a.flow.v, Velocity)]
+            );
+            step!(
+                tr,
+                "pt",
+                a.flow.pt,
+                Pressure,
+                "pt = p0 exp((phi(Tt) - phi(T0))/R) (isentropic)",
+                [
+                    ("p0", a.flow.p, Pressure),
+                    ("Tt", a.flow.tt, Temperature),
+                    ("T0", a.flow.t, Temperature)
+                ]
+            );
+            let intrinsic = if to.statics.is_none() {
+                Some(a.flow)
+            } else {
+                None
+            };
+            let out = finish(
+                &g,
+                to,
+                w,
+                a.flow.tt,
+                a.flow.pt,
+                air,
+                intrinsic,
+                "free stream",
+                tr,
+            )?;
             let mut r = ProcessResult::new(out);
             r.ram_drag = w * a.flow.v;
             r.entry_ke = 0.5 * w * a.flow.v * a.flow.v;
@@ -378,8 +516,18 @@ fn entry(ctx: &Ctx, e: &Entry, to: &Station, tr: &mut Tracer) -> Res<ProcessResu
             );
             let star = isentropic::sonic(&g, tt, pt).map_err(fe)?;
             let w = star.flux() * at;
-            step!(tr, "W", w, MassFlow, "choked throat: W = rho* a* A* at Mach 1 on the isentrope of (Tt, pt)",
-                [("Tt", tt, Temperature), ("pt", pt, Pressure), ("A*", at, Area)]);
+            step!(
+                tr,
+                "W",
+                w,
+                MassFlow,
+                "choked throat: W = rho* a* A* at Mach 1 on the isentrope of (Tt, pt)",
+                [
+                    ("Tt", tt, Temperature),
+                    ("pt", pt, Pressure),
+                    ("A*", at, Area)
+                ]
+            );
             let out = finish(&g, to, w, tt, pt, air, None, "entry", tr)?;
             let mut r = ProcessResult::new(out);
             r.air_in = w / air.mass_per_kg_air();
@@ -418,7 +566,10 @@ fn duct(
         Duct::Recovery { recovery } => {
             let r = recovery.si();
             if !(r.is_finite() && r > 0.0) {
-                return Err(format!("pressure recovery {} must be positive", recovery.text()));
+                return Err(format!(
+                    "pressure recovery {} must be positive",
+                    recovery.text()
+                ));
             }
             if r > 1.0 {
                 return Err(format!(
@@ -426,16 +577,32 @@ fn duct(
                     recovery.text()
                 ));
             }
-            step!(tr, "pt", r * i.pt, Pressure, "pt_out = recovery x pt_in", [("pt_in", i.pt, Pressure), ("recovery", r, Ratio)]);
+            step!(
+                tr,
+                "pt",
+                r * i.pt,
+                Pressure,
+                "pt_out = recovery x pt_in",
+                [("pt_in", i.pt, Pressure), ("recovery", r, Ratio)]
+            );
             (r * i.pt, None)
         }
         Duct::IntakeSchedule => {
             let m0 = ctx.ambient.flow.mach;
             if m0 >= 5.0 {
-                return Err(format!("the intake recovery schedule covers flight Mach up to 5 (here {m0:.3})"));
+                return Err(format!(
+                    "the intake recovery schedule covers flight Mach up to 5 (here {m0:.3})"
+                ));
             }
             let r = mil_recovery(m0);
-            step!(tr, "recovery", r, Ratio, "MIL-E-5008B schedule: 1 - 0.075 (M0 - 1)^1.35 above Mach 1", [("M0", m0, Mach)]);
+            step!(
+                tr,
+                "recovery",
+                r,
+                Ratio,
+                "MIL-E-5008B schedule: 1 - 0.075 (M0 - 1)^1.35 above Mach 1",
+                [("M0", m0, Mach)]
+            );
             (r * i.pt, None)
         }
         Duct::LossCoefficient { k } => {
@@ -446,9 +613,22 @@ fn duct(
             let s = need_statics(i, from, "a loss coefficient on inlet dynamic pressure")?;
             let q = s.dynamic_pressure();
             let pt = i.pt - k * q;
-            step!(tr, "pt", pt, Pressure, "pt_out = pt_in - K q_in, q = rho V^2/2", [("pt_in", i.pt, Pressure), ("K", k, Ratio), ("q_in", q, Pressure)]);
+            step!(
+                tr,
+                "pt",
+                pt,
+                Pressure,
+                "pt_out = pt_in - K q_in, q = rho V^2/2",
+                [
+                    ("pt_in", i.pt, Pressure),
+                    ("K", k, Ratio),
+                    ("q_in", q, Pressure)
+                ]
+            );
             if pt <= 0.0 {
-                return Err(format!("loss coefficient {k} removes all the total pressure"));
+                return Err(format!(
+                    "loss coefficient {k} removes all the total pressure"
+                ));
             }
             (pt, None)
         }
@@ -479,15 +659,39 @@ fn duct(
             let fl = 4.0 * f * l / dia;
             let out = fanno::friction(&g, s, fl).map_err(fe)?;
             let max = fanno::friction_to_sonic(&g, s).map_err(fe)?;
-            step!(tr, "M", out.mach, Mach, "Fanno line: 4fL*/D(M_in) - 4fL/D = 4fL*/D(M_out), same branch", [("M_in", s.mach, Mach), ("4fL/D", fl, Ratio)]);
+            step!(
+                tr,
+                "M",
+                out.mach,
+                Mach,
+                "Fanno line: 4fL*/D(M_in) - 4fL/D = 4fL*/D(M_out), same branch",
+                [("M_in", s.mach, Mach), ("4fL/D", fl, Ratio)]
+            );
             figures.push(("friction_4fl_d", fl));
             figures.push(("max_4fl_d", max));
             figures.push(("mach_out", out.mach));
             (out.pt, Some(out))
         }
     };
-    step!(tr, "Tt", i.tt, Temperature, "adiabatic: total enthalpy, so Tt, unchanged", [("Tt_in", i.tt, Temperature)]);
-    let out = finish(&g, to, i.w, i.tt, pt, i.comp, intrinsic, "friction duct", tr)?;
+    step!(
+        tr,
+        "Tt",
+        i.tt,
+        Temperature,
+        "adiabatic: total enthalpy, so Tt, unchanged",
+        [("Tt_in", i.tt, Temperature)]
+    );
+    let out = finish(
+        &g,
+        to,
+        i.w,
+        i.tt,
+        pt,
+        i.comp,
+        intrinsic,
+        "friction duct",
+        tr,
+    )?;
     let mut r = ProcessResult::new(out);
     figures.insert(0, ("recovery", pt / i.pt));
     figures.insert(1, ("loss", 1.0 - pt / i.pt));
@@ -514,10 +718,27 @@ fn combustor(
     };
     let (burn, eta) = match &c.mode {
         Burn::ExitTemperature(t) => {
-            let b = combustion::far_for_temperature(ctx.model, &i.comp, i.tt, t.si(), &burner(eta_given)).map_err(fe)?;
-            step!(tr, "far added", b.far_added, Ratio,
+            let b = combustion::far_for_temperature(
+                ctx.model,
+                &i.comp,
+                i.tt,
+                t.si(),
+                &burner(eta_given),
+            )
+            .map_err(fe)?;
+            step!(
+                tr,
+                "far added",
+                b.far_added,
+                Ratio,
                 "energy balance per kg air: (1+f_out) hs_out(Tt_out) = (1+f_in) hs_in(Tt_in) + eta f LHV, hs = h(T) - h(298.15 K), fuel at 298.15 K",
-                [("Tt_in", i.tt, Temperature), ("Tt_out", t.si(), Temperature), ("eta", eta_given, Ratio), ("LHV", lhv, SpecificEnergy)]);
+                [
+                    ("Tt_in", i.tt, Temperature),
+                    ("Tt_out", t.si(), Temperature),
+                    ("eta", eta_given, Ratio),
+                    ("LHV", lhv, SpecificEnergy)
+                ]
+            );
             (b, eta_given)
         }
         Burn::FuelFlow(wf) => {
@@ -525,29 +746,62 @@ fn combustor(
             if !(wf.is_finite() && wf >= 0.0) {
                 return Err("fuel flow must be zero or positive".into());
             }
-            let b = combustion::exit_temperature(ctx.model, &i.comp, i.tt, wf / air, &burner(eta_given)).map_err(fe)?;
-            step!(tr, "Tt_out", b.tt_out, Temperature,
+            let b = combustion::exit_temperature(
+                ctx.model,
+                &i.comp,
+                i.tt,
+                wf / air,
+                &burner(eta_given),
+            )
+            .map_err(fe)?;
+            step!(
+                tr,
+                "Tt_out",
+                b.tt_out,
+                Temperature,
                 "energy balance per kg air: (1+f_out) hs_out(Tt_out) = (1+f_in) hs_in(Tt_in) + eta f LHV",
-                [("Tt_in", i.tt, Temperature), ("f added = Wf/W_air", wf / air, Ratio), ("eta", eta_given, Ratio), ("LHV", lhv, SpecificEnergy)]);
+                [
+                    ("Tt_in", i.tt, Temperature),
+                    ("f added = Wf/W_air", wf / air, Ratio),
+                    ("eta", eta_given, Ratio),
+                    ("LHV", lhv, SpecificEnergy)
+                ]
+            );
             (b, eta_given)
         }
         Burn::Measured(wf) => {
             let wf = positive(wf, "fuel flow")?;
             let t = measured(&to.tt, &to.name, "the exit total temperature")?.si();
             let f = wf / air;
-            let eta = combustion::measured_efficiency(ctx.model, &i.comp, i.tt, t, f, fuel, lhv).map_err(fe)?;
-            step!(tr, "efficiency", eta, Ratio,
+            let eta = combustion::measured_efficiency(ctx.model, &i.comp, i.tt, t, f, fuel, lhv)
+                .map_err(fe)?;
+            step!(
+                tr,
+                "efficiency",
+                eta,
+                Ratio,
                 "eta = [(1+f_out) hs_out(Tt_out) - (1+f_in) hs_in(Tt_in)] / (f LHV)",
-                [("Tt_in", i.tt, Temperature), ("Tt_out measured", t, Temperature), ("f added", f, Ratio), ("LHV", lhv, SpecificEnergy)]);
+                [
+                    ("Tt_in", i.tt, Temperature),
+                    ("Tt_out measured", t, Temperature),
+                    ("f added", f, Ratio),
+                    ("LHV", lhv, SpecificEnergy)
+                ]
+            );
             if eta > 1.0 {
                 return Err(format!(
                     "combustion efficiency {eta:.4} from the measured values is above 1: check the exit temperature and fuel flow readings"
                 ));
             }
             if eta <= 0.0 {
-                return Err(format!("combustion efficiency {eta:.4} from the measured values is not positive: exit colder than inlet?"));
+                return Err(format!(
+                    "combustion efficiency {eta:.4} from the measured values is not positive: exit colder than inlet?"
+                ));
             }
-            let out = i.comp.burnt(i.comp.far + f, fuel).map_err(|e| e.to_string())?;
+            let out = i
+                .comp
+                .burnt(i.comp.far + f, fuel)
+                .map_err(|e| e.to_string())?;
             (
                 combustion::Burn {
                     composition: out,
@@ -560,10 +814,34 @@ fn combustor(
     };
     let wf = burn.far_added * air;
     let pt = i.pt * (1.0 - loss);
-    step!(tr, "fuel flow", wf, MassFlow, "Wf = f_added x W_air", [("f added", burn.far_added, Ratio), ("W_air", air, MassFlow)]);
-    step!(tr, "pt", pt, Pressure, "pt_out = pt_in (1 - loss)", [("pt_in", i.pt, Pressure), ("loss", loss, Ratio)]);
+    step!(
+        tr,
+        "fuel flow",
+        wf,
+        MassFlow,
+        "Wf = f_added x W_air",
+        [("f added", burn.far_added, Ratio), ("W_air", air, MassFlow)]
+    );
+    step!(
+        tr,
+        "pt",
+        pt,
+        Pressure,
+        "pt_out = pt_in (1 - loss)",
+        [("pt_in", i.pt, Pressure), ("loss", loss, Ratio)]
+    );
     let g = gas(ctx, &burn.composition)?;
-    let out = finish(&g, to, i.w + wf, burn.tt_out, pt, burn.composition, None, "combustor", tr)?;
+    let out = finish(
+        &g,
+        to,
+        i.w + wf,
+        burn.tt_out,
+        pt,
+        burn.composition,
+        None,
+        "combustor",
+        tr,
+    )?;
     let mut r = ProcessResult::new(out);
     r.fuel = wf;
     r.heat_release = wf * lhv;
@@ -598,10 +876,37 @@ fn heating(
     let star = rayleigh::sonic_state(&g, s).map_err(fe)?;
     let q_max = g.h(star.tt).map_err(|e| e.to_string())? - g.h(i.tt).map_err(|e| e.to_string())?;
     let out = rayleigh::heat(&g, s, q).map_err(fe)?;
-    step!(tr, "Tt", out.tt, Temperature, "h(Tt_out) = h(Tt_in) + q", [("Tt_in", i.tt, Temperature), ("q", q, SpecificEnergy)]);
-    step!(tr, "M", out.mach, Mach, "Rayleigh line: rho V and p + rho V^2 constant, same branch; chokes at Mach 1",
-        [("M_in", s.mach, Mach), ("q", q, SpecificEnergy), ("q to choke", q_max, SpecificEnergy)]);
-    let st = finish(&g, to, i.w, out.tt, out.pt, i.comp, Some(out), "Rayleigh heating", tr)?;
+    step!(
+        tr,
+        "Tt",
+        out.tt,
+        Temperature,
+        "h(Tt_out) = h(Tt_in) + q",
+        [("Tt_in", i.tt, Temperature), ("q", q, SpecificEnergy)]
+    );
+    step!(
+        tr,
+        "M",
+        out.mach,
+        Mach,
+        "Rayleigh line: rho V and p + rho V^2 constant, same branch; chokes at Mach 1",
+        [
+            ("M_in", s.mach, Mach),
+            ("q", q, SpecificEnergy),
+            ("q to choke", q_max, SpecificEnergy)
+        ]
+    );
+    let st = finish(
+        &g,
+        to,
+        i.w,
+        out.tt,
+        out.pt,
+        i.comp,
+        Some(out),
+        "Rayleigh heating",
+        tr,
+    )?;
     let mut r = ProcessResult::new(st);
     r.figures = vec![
         ("heat", q),
@@ -623,10 +928,7 @@ fn stage_figures(st: &Stage, w: f64, i: &StationValue) -> Vec<(&'static str, f64
         ("power", st.work * w),
         ("tt_ratio", st.tt_out / i.tt),
         ("tt_ideal", st.tt_ideal),
-        (
-            "wc_in",
-            crate::atmosphere::corrected_flow(i.w, i.tt, i.pt),
-        ),
+        ("wc_in", crate::atmosphere::corrected_flow(i.w, i.tt, i.pt)),
     ]
 }
 
@@ -653,7 +955,10 @@ fn compressor(
             let tt = measured(&to.tt, &to.name, "the exit total temperature")?.si();
             let pt = measured(&to.pt, &to.name, "the exit total pressure")?.si();
             if pt < i.pt {
-                return Err(format!("measured exit pt {pt:.1} Pa is below the inlet's {:.1} Pa: this is not a compression", i.pt));
+                return Err(format!(
+                    "measured exit pt {pt:.1} Pa is below the inlet's {:.1} Pa: this is not a compression",
+                    i.pt
+                ));
             }
             let st = turbo::measured_compression(&g, i.tt, tt, pt / i.pt).map_err(fe)?;
             if st.eta_isentropic > 1.0 {
@@ -666,12 +971,48 @@ fn compressor(
         }
     };
     let pr = st.pressure_ratio;
-    step!(tr, "Tt_ideal", st.tt_ideal, Temperature, "isentropic exit: phi(Tt_ideal) = phi(Tt_in) + R ln(PR)",
-        [("Tt_in", i.tt, Temperature), ("PR", pr, Ratio), ("R", g.r(), SpecificHeat)]);
-    step!(tr, "Tt", st.tt_out, Temperature, "h(Tt_out) = h(Tt_in) + (h(Tt_ideal) - h(Tt_in))/eta_is; polytropic: phi(Tt_out) = phi(Tt_in) + R ln(PR)/eta_p",
-        [("eta_is", st.eta_isentropic, Ratio), ("eta_p", st.eta_polytropic, Ratio)]);
-    step!(tr, "work", st.work, SpecificEnergy, "w = h(Tt_out) - h(Tt_in)", [("Tt_in", i.tt, Temperature), ("Tt_out", st.tt_out, Temperature)]);
-    step!(tr, "pt", pt, Pressure, "pt_out = PR x pt_in", [("pt_in", i.pt, Pressure), ("PR", pr, Ratio)]);
+    step!(
+        tr,
+        "Tt_ideal",
+        st.tt_ideal,
+        Temperature,
+        "isentropic exit: phi(Tt_ideal) = phi(Tt_in) + R ln(PR)",
+        [
+            ("Tt_in", i.tt, Temperature),
+            ("PR", pr, Ratio),
+            ("R", g.r(), SpecificHeat)
+        ]
+    );
+    step!(
+        tr,
+        "Tt",
+        st.tt_out,
+        Temperature,
+        "h(Tt_out) = h(Tt_in) + (h(Tt_ideal) - h(Tt_in))/eta_is; polytropic: phi(Tt_out) = phi(Tt_in) + R ln(PR)/eta_p",
+        [
+            ("eta_is", st.eta_isentropic, Ratio),
+            ("eta_p", st.eta_polytropic, Ratio)
+        ]
+    );
+    step!(
+        tr,
+        "work",
+        st.work,
+        SpecificEnergy,
+        "w = h(Tt_out) - h(Tt_in)",
+        [
+            ("Tt_in", i.tt, Temperature),
+            ("Tt_out", st.tt_out, Temperature)
+        ]
+    );
+    step!(
+        tr,
+        "pt",
+        pt,
+        Pressure,
+        "pt_out = PR x pt_in",
+        [("pt_in", i.pt, Pressure), ("PR", pr, Ratio)]
+    );
     let out = finish(&g, to, i.w, st.tt_out, pt, i.comp, None, "compressor", tr)?;
     let mut r = ProcessResult::new(out);
     r.power = st.work * i.w;
@@ -709,15 +1050,23 @@ fn turbine(
                 ));
             }
             let work = need / i.w;
-            step!(tr, "work", work, SpecificEnergy, "shaft balance: W_t w_t eta_m = sum of compressor powers + offtake - other turbines' powers x eta_m",
-                [("power needed", need, Power), ("W_t", i.w, MassFlow)]);
+            step!(
+                tr,
+                "work",
+                work,
+                SpecificEnergy,
+                "shaft balance: W_t w_t eta_m = sum of compressor powers + offtake - other turbines' powers x eta_m",
+                [("power needed", need, Power), ("W_t", i.w, MassFlow)]
+            );
             turbo::expand_for_work(&g, i.tt, work, efficiency(e, *basis, "turbine")?).map_err(fe)?
         }
         Expansion::Measured => {
             let tt = measured(&to.tt, &to.name, "the exit total temperature")?.si();
             let pt = measured(&to.pt, &to.name, "the exit total pressure")?.si();
             if pt > i.pt {
-                return Err("measured exit pt is above the inlet's: this is not an expansion".into());
+                return Err(
+                    "measured exit pt is above the inlet's: this is not an expansion".into(),
+                );
             }
             let st = turbo::measured_expansion(&g, i.tt, tt, i.pt / pt).map_err(fe)?;
             if st.eta_isentropic > 1.0 {
@@ -730,11 +1079,37 @@ fn turbine(
         }
     };
     let pt = i.pt / st.pressure_ratio;
-    step!(tr, "Tt_ideal", st.tt_ideal, Temperature, "isentropic exit: phi(Tt_ideal) = phi(Tt_in) - R ln(pt_in/pt_out)",
-        [("Tt_in", i.tt, Temperature), ("ER", st.pressure_ratio, Ratio), ("R", g.r(), SpecificHeat)]);
-    step!(tr, "Tt", st.tt_out, Temperature, "h(Tt_out) = h(Tt_in) - eta_is (h(Tt_in) - h(Tt_ideal))",
-        [("eta_is", st.eta_isentropic, Ratio), ("eta_p", st.eta_polytropic, Ratio)]);
-    step!(tr, "pt", pt, Pressure, "pt_out = pt_in / ER", [("pt_in", i.pt, Pressure), ("ER", st.pressure_ratio, Ratio)]);
+    step!(
+        tr,
+        "Tt_ideal",
+        st.tt_ideal,
+        Temperature,
+        "isentropic exit: phi(Tt_ideal) = phi(Tt_in) - R ln(pt_in/pt_out)",
+        [
+            ("Tt_in", i.tt, Temperature),
+            ("ER", st.pressure_ratio, Ratio),
+            ("R", g.r(), SpecificHeat)
+        ]
+    );
+    step!(
+        tr,
+        "Tt",
+        st.tt_out,
+        Temperature,
+        "h(Tt_out) = h(Tt_in) - eta_is (h(Tt_in) - h(Tt_ideal))",
+        [
+            ("eta_is", st.eta_isentropic, Ratio),
+            ("eta_p", st.eta_polytropic, Ratio)
+        ]
+    );
+    step!(
+        tr,
+        "pt",
+        pt,
+        Pressure,
+        "pt_out = pt_in / ER",
+        [("pt_in", i.pt, Pressure), ("ER", st.pressure_ratio, Ratio)]
+    );
     let out = finish(&g, to, i.w, st.tt_out, pt, i.comp, None, "turbine", tr)?;
     let mut r = ProcessResult::new(out);
     r.power = -st.work * i.w;
@@ -752,10 +1127,41 @@ fn normal_shock(
     let g = gas(ctx, &i.comp)?;
     let up = need_statics(i, from, "a normal shock")?;
     let dn = shock::normal(&g, up).map_err(fe)?;
-    step!(tr, "M", dn.mach, Mach, match g { Gas::Perfect(_) => "Rankine-Hugoniot: M2^2 = (1 + (g-1)/2 M1^2)/(g M1^2 - (g-1)/2)", Gas::Thermal(_) => "mass, momentum and energy conserved across the shock, solved for rho1/rho2 with h(T)" },
-        [("M1", up.mach, Mach), ("T1", up.t, Temperature), ("p1", up.p, Pressure)]);
-    step!(tr, "pt", dn.pt, Pressure, "pt2 = p2 exp((phi(Tt) - phi(T2))/R), Tt unchanged", [("p2", dn.p, Pressure), ("T2", dn.t, Temperature)]);
-    let out = finish(&g, to, i.w, i.tt, dn.pt, i.comp, Some(dn), "normal shock", tr)?;
+    step!(
+        tr,
+        "M",
+        dn.mach,
+        Mach,
+        match g {
+            Gas::Perfect(_) => "Rankine-Hugoniot: M2^2 = (1 + (g-1)/2 M1^2)/(g M1^2 - (g-1)/2)",
+            Gas::Thermal(_) =>
+                "mass, momentum and energy conserved across the shock, solved for rho1/rho2 with h(T)",
+        },
+        [
+            ("M1", up.mach, Mach),
+            ("T1", up.t, Temperature),
+            ("p1", up.p, Pressure)
+        ]
+    );
+    step!(
+        tr,
+        "pt",
+        dn.pt,
+        Pressure,
+        "pt2 = p2 exp((phi(Tt) - phi(T2))/R), Tt unchanged",
+        [("p2", dn.p, Pressure), ("T2", dn.t, Temperature)]
+    );
+    let out = finish(
+        &g,
+        to,
+        i.w,
+        i.tt,
+        dn.pt,
+        i.comp,
+        Some(dn),
+        "normal shock",
+        tr,
+    )?;
     let mut r = ProcessResult::new(out);
     r.figures = vec![
         ("mach_in", up.mach),
@@ -780,8 +1186,18 @@ fn nozzle(
     let star = isentropic::sonic(&g, i.tt, i.pt).map_err(fe)?;
     let npr = i.pt / p_amb;
     let choked = star.p >= p_amb;
-    step!(tr, "p*", star.p, Pressure, "sonic static pressure on the isentrope of (Tt, pt); choked when p* >= p_ambient",
-        [("Tt", i.tt, Temperature), ("pt", i.pt, Pressure), ("p ambient", p_amb, Pressure)]);
+    step!(
+        tr,
+        "p*",
+        star.p,
+        Pressure,
+        "sonic static pressure on the isentrope of (Tt, pt); choked when p* >= p_ambient",
+        [
+            ("Tt", i.tt, Temperature),
+            ("pt", i.pt, Pressure),
+            ("p ambient", p_amb, Pressure)
+        ]
+    );
     let throat_eff = if choked { i.w / star.flux() } else { f64::NAN };
     let (exit, area_eff) = match (&n.shape, &n.exit) {
         (Shape::Convergent, Exit::Matched) => {
@@ -830,9 +1246,28 @@ fn nozzle(
     };
     let v = cv * exit.v;
     let thrust = i.w * v + (exit.p - p_amb) * area_eff;
-    step!(tr, "V exit", v, Velocity, "V = Cv V_ideal, V_ideal = sqrt(2 (h(Tt) - h(T_exit)))", [("Cv", cv, Ratio), ("V ideal", exit.v, Velocity)]);
-    step!(tr, "gross thrust", thrust, Force, "F = W V + (p_exit - p_ambient) A_exit (A effective = Cd A)",
-        [("W", i.w, MassFlow), ("V", v, Velocity), ("p exit", exit.p, Pressure), ("p ambient", p_amb, Pressure), ("A effective", area_eff, Area)]);
+    step!(
+        tr,
+        "V exit",
+        v,
+        Velocity,
+        "V = Cv V_ideal, V_ideal = sqrt(2 (h(Tt) - h(T_exit)))",
+        [("Cv", cv, Ratio), ("V ideal", exit.v, Velocity)]
+    );
+    step!(
+        tr,
+        "gross thrust",
+        thrust,
+        Force,
+        "F = W V + (p_exit - p_ambient) A_exit (A effective = Cd A)",
+        [
+            ("W", i.w, MassFlow),
+            ("V", v, Velocity),
+            ("p exit", exit.p, Pressure),
+            ("p ambient", p_amb, Pressure),
+            ("A effective", area_eff, Area)
+        ]
+    );
     let exit_state = FlowState { v, ..exit };
     let out = StationValue {
         w: i.w,
@@ -856,7 +1291,10 @@ fn nozzle(
         ("thrust", thrust),
         ("area", area_eff / cd),
         ("throat_area", throat_eff / cd),
-        ("required_area", i.w / (if choked { star.flux() } else { exit.flux() }) / cd),
+        (
+            "required_area",
+            i.w / (if choked { star.flux() } else { exit.flux() }) / cd,
+        ),
         ("mach_out", exit.mach),
         ("exit_p_ratio", exit.p / p_amb),
         ("npr", npr),
@@ -890,7 +1328,11 @@ fn mixer(
     let comp = Composition {
         far,
         war,
-        fuel: if a.comp.far > 0.0 { a.comp.fuel } else { b.comp.fuel },
+        fuel: if a.comp.far > 0.0 {
+            a.comp.fuel
+        } else {
+            b.comp.fuel
+        },
     };
     let g = gas(ctx, &comp)?;
     let w = a.w + b.w;
@@ -899,11 +1341,34 @@ fn mixer(
     let impulse = sa.p * aa + a.w * sa.v + sb.p * ab + b.w * sb.v;
     let area = aa + ab;
     let h_ref = g.h(crate::gas::T_REFERENCE).map_err(|e| e.to_string())?;
-    let tt = crate::gas::invert_h(&g, ht + h_ref, 0.5 * (a.tt + b.tt)).map_err(|e| e.to_string())?;
-    step!(tr, "Tt", tt, Temperature, "energy: W ht = W1 ht1 + W2 ht2 (sensible enthalpies)", [("W1", a.w, MassFlow), ("Tt1", a.tt, Temperature), ("W2", b.w, MassFlow), ("Tt2", b.tt, Temperature)]);
+    let tt =
+        crate::gas::invert_h(&g, ht + h_ref, 0.5 * (a.tt + b.tt)).map_err(|e| e.to_string())?;
+    step!(
+        tr,
+        "Tt",
+        tt,
+        Temperature,
+        "energy: W ht = W1 ht1 + W2 ht2 (sensible enthalpies)",
+        [
+            ("W1", a.w, MassFlow),
+            ("Tt1", a.tt, Temperature),
+            ("W2", b.w, MassFlow),
+            ("Tt2", b.tt, Temperature)
+        ]
+    );
     let out = rayleigh::on_line(&g, w / area, impulse / area, tt, Branch::Subsonic).map_err(fe)?;
-    step!(tr, "p", out.p, Pressure, "momentum: p A + W V = p1 A1 + W1 V1 + p2 A2 + W2 V2 with A = A1 + A2, subsonic root",
-        [("p1", sa.p, Pressure), ("p2", sb.p, Pressure), ("A", area, Area)]);
+    step!(
+        tr,
+        "p",
+        out.p,
+        Pressure,
+        "momentum: p A + W V = p1 A1 + W1 V1 + p2 A2 + W2 V2 with A = A1 + A2, subsonic root",
+        [
+            ("p1", sa.p, Pressure),
+            ("p2", sb.p, Pressure),
+            ("A", area, Area)
+        ]
+    );
     let st = finish(&g, to, w, tt, out.pt, comp, Some(out), "mixer", tr)?;
     let mut r = ProcessResult::new(st);
     r.figures = vec![

@@ -311,18 +311,18 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
             (None, true) => {}
         }
-        if let Kind::Mixer(m) = &p.kind {
-            if let Some(s) = station(&whose, &m.secondary, &mut errors) {
-                g.inputs[i].push(s);
-            }
+        if let Kind::Mixer(m) = &p.kind
+            && let Some(s) = station(&whose, &m.secondary, &mut errors)
+        {
+            g.inputs[i].push(s);
         }
         if let Some(s) = station(&whose, &p.to, &mut errors) {
             outputs[i].push(s);
         }
-        if let Kind::Split(sp) = &p.kind {
-            if let Some(s) = station(&whose, &sp.bypass, &mut errors) {
-                outputs[i].push(s);
-            }
+        if let Kind::Split(sp) = &p.kind
+            && let Some(s) = station(&whose, &sp.bypass, &mut errors)
+        {
+            outputs[i].push(s);
         }
         let shaft = match &p.kind {
             Kind::Compressor(c) => c.shaft.as_ref(),
@@ -369,20 +369,20 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
     // Shaft-work turbines depend on the other machines on their shaft.
     let mut work_turbines: HashMap<usize, usize> = HashMap::new();
     for (i, p) in book.processes.iter().enumerate() {
-        if let Kind::Turbine(t) = &p.kind {
-            if matches!(t.mode, Expansion::ShaftWork { .. }) {
-                match g.shaft_of[i] {
-                    None => errors.push(BookError::Rule(format!(
-                        "turbine \"{}\" takes its work from a shaft balance: name its shaft",
-                        p.name
-                    ))),
-                    Some(k) => {
-                        if let Some(other) = work_turbines.insert(k, i) {
-                            errors.push(BookError::Rule(format!(
+        if let Kind::Turbine(t) = &p.kind
+            && matches!(t.mode, Expansion::ShaftWork { .. })
+        {
+            match g.shaft_of[i] {
+                None => errors.push(BookError::Rule(format!(
+                    "turbine \"{}\" takes its work from a shaft balance: name its shaft",
+                    p.name
+                ))),
+                Some(k) => {
+                    if let Some(other) = work_turbines.insert(k, i) {
+                        errors.push(BookError::Rule(format!(
                                 "shaft \"{}\" has two turbines whose work the balance sets (\"{}\" and \"{}\"); give one a pressure ratio",
                                 book.shafts[k].name, book.processes[other].name, p.name
                             )));
-                        }
                     }
                 }
             }
@@ -395,10 +395,10 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
     g.deps = (0..n)
         .map(|i| {
             let mut d: Vec<usize> = g.inputs[i].iter().map(|&s| g.producer[s]).collect();
-            if let Some(k) = g.shaft_of[i] {
-                if work_turbines.get(&k) == Some(&i) {
-                    d.extend((0..n).filter(|&j| j != i && g.shaft_of[j] == Some(k)));
-                }
+            if let Some(k) = g.shaft_of[i]
+                && work_turbines.get(&k) == Some(&i)
+            {
+                d.extend((0..n).filter(|&j| j != i && g.shaft_of[j] == Some(k)));
             }
             d.sort_unstable();
             d.dedup();
@@ -421,9 +421,9 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         };
         done[next] = true;
         g.order.push(next);
-        for i in 0..n {
-            if g.deps[i].contains(&next) {
-                indeg[i] -= 1;
+        for (d, deg) in g.deps.iter().zip(indeg.iter_mut()) {
+            if d.contains(&next) {
+                *deg -= 1;
             }
         }
     }
@@ -596,7 +596,9 @@ impl Engine {
                 if self.book.processes[p].to == self.book.stations[s].name {
                     Ok(&r.out)
                 } else {
-                    r.out2.as_ref().ok_or_else(|| self.book.processes[p].name.clone())
+                    r.out2
+                        .as_ref()
+                        .ok_or_else(|| self.book.processes[p].name.clone())
                 }
             }
             Some(NodeOut::Blocked(by)) => Err(by.clone()),
@@ -770,6 +772,12 @@ impl Engine {
                 }
             };
             let (lo, hi) = (g.low.si(), g.high.si());
+            let original = self
+                .book
+                .givens()
+                .into_iter()
+                .find(|(p, ..)| *p == g.vary)
+                .map(|(_, _, _, si)| si);
             let result = {
                 let eng = &mut *self;
                 solve::brent(|x| f(eng, x), lo, hi, 1e-12, 100)
@@ -807,6 +815,11 @@ impl Engine {
                             k + 1
                         ),
                     };
+                    // Leave the varied given where the user put it.
+                    if let Some(x) = original {
+                        let _ = self.set_si_quiet(&g.vary, x);
+                        self.run_nodes();
+                    }
                     last_problem = Some(msg);
                     GoalOutcome {
                         value: None,
@@ -955,7 +968,8 @@ impl Engine {
             "s" => {
                 let g = gas()?;
                 Some(
-                    g.phi(v.tt).ok()? - g.phi(T_REFERENCE).ok()?
+                    g.phi(v.tt).ok()?
+                        - g.phi(T_REFERENCE).ok()?
                         - g.r() * (v.pt / atmosphere::SEA_LEVEL_PRESSURE_PA).ln(),
                 )
             }
@@ -977,7 +991,8 @@ impl Engine {
                 if !self.graph.station_index.contains_key(&p.name) {
                     return Err(bad());
                 }
-                self.station(&p.name).and_then(|v| self.station_key(v, &p.key))
+                self.station(&p.name)
+                    .and_then(|v| self.station_key(v, &p.key))
             }
             Scope::Process => {
                 if !self.graph.process_index.contains_key(&p.name) {
@@ -1047,11 +1062,27 @@ impl Engine {
         if let Some(v) = self.station(station) {
             let mut tr = Tracer::on(&mut steps);
             let wc = atmosphere::corrected_flow(v.w, v.tt, v.pt);
-            explain::step!(tr, "Wc", wc, MassFlow, "corrected flow W sqrt(theta)/delta, theta = Tt/288.15 K, delta = pt/101325 Pa",
-                [("W", v.w, MassFlow), ("Tt", v.tt, Temperature), ("pt", v.pt, Pressure)]);
+            explain::step!(
+                tr,
+                "Wc",
+                wc,
+                MassFlow,
+                "corrected flow W sqrt(theta)/delta, theta = Tt/288.15 K, delta = pt/101325 Pa",
+                [
+                    ("W", v.w, MassFlow),
+                    ("Tt", v.tt, Temperature),
+                    ("pt", v.pt, Pressure)
+                ]
+            );
             if let Some(s_val) = self.station_key(v, "s") {
-                explain::step!(tr, "s", s_val, SpecificHeat, "entropy from 298.15 K, 101325 Pa: s = phi(Tt) - phi(298.15) - R ln(pt/101325)",
-                    [("Tt", v.tt, Temperature), ("pt", v.pt, Pressure)]);
+                explain::step!(
+                    tr,
+                    "s",
+                    s_val,
+                    SpecificHeat,
+                    "entropy from 298.15 K, 101325 Pa: s = phi(Tt) - phi(298.15) - R ln(pt/101325)",
+                    [("Tt", v.tt, Temperature), ("pt", v.pt, Pressure)]
+                );
             }
         }
         Ok(steps)

@@ -14,7 +14,12 @@ use rayon::prelude::*;
 pub type Row = (f64, Vec<Option<f64>>);
 
 /// Run a sweep. `report` paths are checked before any work starts.
-pub fn run(engine: &Engine, vary: &str, values: &[f64], report: &[String]) -> Result<Vec<Row>, BookError> {
+pub fn run(
+    engine: &Engine,
+    vary: &str,
+    values: &[f64],
+    report: &[String],
+) -> Result<Vec<Row>, BookError> {
     for r in report {
         engine
             .value(r)

@@ -120,9 +120,14 @@ pub fn far_for_temperature(
         // root checked afterwards.
         let gas = match model {
             GasModel::Thermal => crate::gas::Gas::Thermal(c.mixture()),
-            _ => model.gas(&Composition { far: df.max(1e-9), ..c })?,
+            _ => model.gas(&Composition {
+                far: df.max(1e-9),
+                ..c
+            })?,
         };
-        Ok(c.mass_per_kg_air() * gas.sensible_h(tt_out)? - e_in - burner.efficiency * df * burner.lhv)
+        Ok(c.mass_per_kg_air() * gas.sensible_h(tt_out)?
+            - e_in
+            - burner.efficiency * df * burner.lhv)
     };
     let (a, b) = (1e-3, 2e-2);
     let (ra, rb) = (residual(a)?, residual(b)?);
@@ -204,8 +209,8 @@ mod tests {
         let burn = far_for_temperature(&model, &air, 600.0, 1450.0, &b).unwrap();
         let back = exit_temperature(&model, &air, 600.0, burn.far_added, &b).unwrap();
         assert_relative_eq!(back.tt_out, 1450.0, max_relative = 1e-11);
-        let eta =
-            measured_efficiency(&model, &air, 600.0, 1450.0, burn.far_added, b.fuel, b.lhv).unwrap();
+        let eta = measured_efficiency(&model, &air, 600.0, 1450.0, burn.far_added, b.fuel, b.lhv)
+            .unwrap();
         assert_relative_eq!(eta, 0.995, max_relative = 1e-11);
         // Stoichiometric limit: too hot a target is a rich-mixture error.
         assert!(far_for_temperature(&model, &air, 600.0, 3500.0, &b).is_err());

@@ -138,12 +138,7 @@ fn state_on_line(gas: &Gas, inlet: &FlowState, flux: f64, m: f64) -> Result<Flow
     let rho = flux / unit.v;
     let p = rho * gas.r() * unit.t;
     let pt = p / unit.p;
-    Ok(FlowState {
-        pt,
-        p,
-        rho,
-        ..unit
-    })
+    Ok(FlowState { pt, p, rho, ..unit })
 }
 
 #[cfg(test)]

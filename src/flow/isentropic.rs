@@ -132,7 +132,9 @@ pub mod closed {
                 newton_monotone(res, 1.0, hi, 0.5 * (1.0 + hi), true, 1e-15, 1e-13, 300)
             }
         };
-        r.map_err(|e: solve::SolveError<FlowError>| FlowError::from_solve("Mach from area ratio", e))
+        r.map_err(|e: solve::SolveError<FlowError>| {
+            FlowError::from_solve("Mach from area ratio", e)
+        })
     }
 }
 
@@ -143,7 +145,7 @@ fn check_totals(tt: f64, pt: f64) -> Result<(), FlowError> {
 }
 
 fn check_mach(m: f64) -> Result<f64, FlowError> {
-    if m.is_finite() && m >= 0.0 && m <= 100.0 {
+    if m.is_finite() && (0.0..=100.0).contains(&m) {
         Ok(m)
     } else {
         Err(FlowError::BadInput {
@@ -474,7 +476,18 @@ pub mod general {
         check_totals(tt, pt)?;
         positive("mass flow", w)?;
         positive("area", area)?;
-        let star = from_mach(gas, tt, pt, 1.0)?;
+        // The sonic state bounds the flux; when it lies below the gas data
+        // (a cold total temperature), the coldest state in range does, and
+        // only the subsonic branch exists in range.
+        let at_t = gas.state(tt)?;
+        let (t_lo, _) = gas.range();
+        let star = match from_mach(gas, tt, pt, 1.0) {
+            Ok(s) => s,
+            Err(FlowError::NoSolution { .. }) if branch == Branch::Subsonic => {
+                finish(gas, tt, pt, at_t.h, at_t.phi, t_lo)?
+            }
+            Err(e) => return Err(e),
+        };
         let g_star = star.flux();
         let flux = w / area;
         if flux > g_star * (1.0 + 1e-10) {
@@ -487,7 +500,6 @@ pub mod general {
         if flux >= g_star {
             return Ok(star);
         }
-        let at_t = gas.state(tt)?;
         let r = gas.r();
         let gt = at_t.cp / (at_t.cp - r);
         let m0 = closed::mach_from_area_ratio(g_star / flux, gt, branch).unwrap_or(0.5);
@@ -611,7 +623,11 @@ mod tests {
         match e {
             FlowError::Choked { max_flow, .. } => {
                 let ff = closed::flow_function(1.0, 1.4, 287.05);
-                assert_relative_eq!(max_flow, ff * 101325.0 / 288.15f64.sqrt(), max_relative = 1e-12);
+                assert_relative_eq!(
+                    max_flow,
+                    ff * 101325.0 / 288.15f64.sqrt(),
+                    max_relative = 1e-12
+                );
                 assert!((closed::flow_function(1.0, 1.4, 287.0) - 0.040418).abs() < 1e-6);
             }
             other => panic!("expected choking, got {other:?}"),
@@ -621,7 +637,11 @@ mod tests {
     #[test]
     fn thermally_perfect_branches_recover_mach() {
         let gas = Gas::Thermal(crate::gas::Mixture::dry_air());
-        for (m, b) in [(0.3, Branch::Subsonic), (0.95, Branch::Subsonic), (1.6, Branch::Supersonic)] {
+        for (m, b) in [
+            (0.3, Branch::Subsonic),
+            (0.95, Branch::Subsonic),
+            (1.6, Branch::Supersonic),
+        ] {
             let s = from_mach(&gas, 1200.0, 5e5, m).unwrap();
             let area = 10.0 / s.flux();
             let back = from_flow(&gas, 1200.0, 5e5, 10.0, area, b).unwrap();

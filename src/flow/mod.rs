@@ -103,7 +103,9 @@ pub enum FlowError {
         asked: f64,
     },
     /// An iterative solution that did not converge.
-    #[error("{what}: no converged solution after {iterations} iterations (residual {residual:.3e})")]
+    #[error(
+        "{what}: no converged solution after {iterations} iterations (residual {residual:.3e})"
+    )]
     NoConvergence {
         /// The relation being solved.
         what: &'static str,

@@ -60,10 +60,7 @@ impl Line {
     fn u_at_t(&self, t: f64) -> (f64, f64) {
         let disc = (self.i * self.i - 4.0 * self.g * self.g * self.r * t).max(0.0);
         let s = disc.sqrt();
-        (
-            (self.i - s) / (2.0 * self.g),
-            (self.i + s) / (2.0 * self.g),
-        )
+        ((self.i - s) / (2.0 * self.g), (self.i + s) / (2.0 * self.g))
     }
     fn state<T: Thermo + ?Sized>(&self, gas: &T, u: f64) -> Result<FlowState, FlowError> {
         let t = self.t(u);
@@ -242,7 +239,11 @@ mod tests {
         let line = Line::through(&g, &inlet);
         let u = line.sonic(&g).unwrap();
         let star = line.state(&g, u).unwrap();
-        assert_relative_eq!(inlet.tt / star.tt, closed::tt_ttstar(0.3, 1.4), max_relative = 1e-9);
+        assert_relative_eq!(
+            inlet.tt / star.tt,
+            closed::tt_ttstar(0.3, 1.4),
+            max_relative = 1e-9
+        );
         // Heat to double the total temperature, then the closed form exit Mach.
         let q = g.cp_value() * 500.0 * 0.5;
         let out = heat(&gas, &inlet, q).unwrap();

@@ -104,7 +104,7 @@ pub fn oblique(
     if !(up.mach.is_finite() && up.mach > 1.0) {
         return Err(FlowError::SubsonicShock { mach: up.mach });
     }
-    if !(theta.is_finite() && theta >= 0.0 && theta < FRAC_PI_2) {
+    if !(theta.is_finite() && (0.0..FRAC_PI_2).contains(&theta)) {
         return Err(FlowError::BadInput {
             what: "deflection angle",
             value: theta.to_degrees(),
@@ -206,12 +206,34 @@ pub mod general {
         let f = |x: f64| -> Result<f64, FlowError> {
             Ok((gas.h(t2(x))? - s1.h - 0.5 * u1 * u1 * (1.0 - x * x)) / scale)
         };
-        let x0 = 1.0 / closed::rho2_rho1(m1, g1);
+        let mut x0 = 1.0 / closed::rho2_rho1(m1, g1);
+        // Where T2(x) would exceed the gas data, f is positive anyway
+        // (h(T2) > h(Tt)); cap the bracket below that band so no trial
+        // leaves the data range.
+        let (_, t_max) = gas.range();
+        let disc = (p1 + mom).powi(2) - 4.0 * mom * rho1 * r * t_max;
+        let cap = if disc > 0.0 && t_max.is_finite() {
+            let xa = ((p1 + mom) - disc.sqrt()) / (2.0 * mom);
+            let xb = ((p1 + mom) + disc.sqrt()) / (2.0 * mom);
+            if x0 > xb {
+                1.0
+            } else {
+                x0 = x0.min(0.9 * xa);
+                xa * (1.0 - 1e-12)
+            }
+        } else {
+            1.0
+        };
         // Upper end: between the estimate and the trivial root, where f > 0.
-        let mut hi = x0 + 0.5 * (1.0 - x0);
+        let mut hi = (x0 + 0.5 * (1.0 - x0)).min(cap);
         let mut tries = 0;
         while f(hi)? <= 0.0 {
-            hi = hi + 0.5 * (1.0 - hi);
+            if hi >= cap {
+                return Err(FlowError::NoSolution {
+                    what: "normal shock density ratio",
+                });
+            }
+            hi = (hi + 0.5 * (1.0 - hi)).min(cap);
             tries += 1;
             if tries > 60 {
                 return Err(FlowError::NoSolution {

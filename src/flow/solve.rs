@@ -83,28 +83,28 @@ pub fn newton_monotone<E>(
         if !(next.is_finite() && next > lo && next < hi) {
             next = 0.5 * (lo + hi);
         }
-        let step = (next - x).abs();
-        x = next;
         let tol = xtol * x.abs() + floor;
-        if step <= tol || (hi - lo) <= tol {
-            if r.abs() <= rtol || step <= tol * 1e-3 {
-                let (r2, _) = f(x)?;
-                if r2.abs() <= rtol.max(r.abs()) {
-                    return Ok(x);
-                }
-            }
-            if (hi - lo) <= tol {
-                let (r_lo, _) = f(lo)?;
-                let (r_hi, _) = f(hi)?;
-                if r_lo.signum() == r_hi.signum() {
-                    return Err(SolveError::Stopped(Failure::NoRoot {
-                        at_lo: r_lo,
-                        at_hi: r_hi,
-                    }));
-                }
+        let step = (next - x).abs();
+        if r.abs() <= rtol && step <= tol {
+            return Ok(next);
+        }
+        if hi - lo <= tol {
+            // The bracket has collapsed: a root only if the residual
+            // changes sign across it.
+            if r.abs() <= rtol {
                 return Ok(x);
             }
+            let (r_lo, _) = f(lo)?;
+            let (r_hi, _) = f(hi)?;
+            if r_lo.signum() == r_hi.signum() {
+                return Err(SolveError::Stopped(Failure::NoRoot {
+                    at_lo: r_lo,
+                    at_hi: r_hi,
+                }));
+            }
+            return Ok(0.5 * (lo + hi));
         }
+        x = next;
     }
     Err(SolveError::Stopped(Failure::IterationCap {
         iterations: max_iter,
@@ -222,7 +222,12 @@ pub fn maximise<E>(
 }
 
 /// Composite Simpson integral of `f` over `[a, b]` with `n` (even) panels.
-pub fn simpson<E>(mut f: impl FnMut(f64) -> Result<f64, E>, a: f64, b: f64, n: usize) -> Result<f64, E> {
+pub fn simpson<E>(
+    mut f: impl FnMut(f64) -> Result<f64, E>,
+    a: f64,
+    b: f64,
+    n: usize,
+) -> Result<f64, E> {
     let n = n.max(2) + n % 2;
     let h = (b - a) / n as f64;
     let mut sum = f(a)? + f(b)?;
@@ -277,8 +282,8 @@ mod tests {
 
     #[test]
     fn golden_section_finds_parabola_top() {
-        let (x, fx) = maximise::<()>(|x| Ok(-(x - 0.3) * (x - 0.3) + 2.0), 0.0, 1.0, 1e-12, 200)
-            .unwrap();
+        let (x, fx) =
+            maximise::<()>(|x| Ok(-(x - 0.3) * (x - 0.3) + 2.0), 0.0, 1.0, 1e-12, 200).unwrap();
         assert!((x - 0.3).abs() < 1e-6 && (fx - 2.0).abs() < 1e-12);
     }
 }

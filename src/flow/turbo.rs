@@ -55,7 +55,7 @@ pub struct Stage {
 }
 
 fn check_ratio(pr: f64) -> Result<f64, FlowError> {
-    if pr.is_finite() && pr >= 1.0 && pr < 1e4 {
+    if pr.is_finite() && (1.0..1e4).contains(&pr) {
         Ok(pr)
     } else {
         Err(FlowError::BadInput {
@@ -201,13 +201,12 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
         });
     }
     let s1 = gas.state(tt_in)?;
-    let tt_out = invert_h(gas, s1.h - work, tt_in - work / s1.cp).map_err(|_| {
-        FlowError::BadInput {
+    let tt_out =
+        invert_h(gas, s1.h - work, tt_in - work / s1.cp).map_err(|_| FlowError::BadInput {
             what: "turbine work",
             value: work,
             why: "it takes the exit total temperature below the gas data range",
-        }
-    })?;
+        })?;
     let s2 = gas.state(tt_out)?;
     let r = gas.r();
     let rl = match eff {
@@ -270,7 +269,11 @@ mod tests {
         let tau = 1.0 + (10f64.powf(0.4 / 1.4) - 1.0) / 0.85;
         assert_relative_eq!(s.tt_out, 288.15 * tau, max_relative = 1e-12);
         let p = compress(&g, 288.15, 10.0, Efficiency::Polytropic(0.9)).unwrap();
-        assert_relative_eq!(p.tt_out, 288.15 * 10f64.powf(0.4 / 1.4 / 0.9), max_relative = 1e-12);
+        assert_relative_eq!(
+            p.tt_out,
+            288.15 * 10f64.powf(0.4 / 1.4 / 0.9),
+            max_relative = 1e-12
+        );
         assert_relative_eq!(p.eta_polytropic, 0.9, max_relative = 1e-12);
         // Isentropic efficiency below polytropic for a compressor (common practice).
         assert!(p.eta_isentropic < 0.9);

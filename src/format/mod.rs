@@ -20,7 +20,8 @@ use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 /// The first line of every workbook file.
-pub const HEADER: &str = "// stationwise workbook: RON text; values keep the units they were typed in.";
+pub const HEADER: &str =
+    "// stationwise workbook: RON text; values keep the units they were typed in.";
 
 /// Why a workbook could not be loaded.
 #[derive(Debug, thiserror::Error)]
@@ -73,10 +74,10 @@ fn syntax(e: ron::error::SpannedError) -> LoadError {
 /// Parse workbook text (version, syntax, givens, structure).
 pub fn parse(text: &str) -> Result<Workbook, LoadError> {
     let opts = ron::Options::default();
-    if let Ok(p) = opts.from_str::<Probe>(text) {
-        if p.format > FORMAT_VERSION {
-            return Err(LoadError::Version { found: p.format });
-        }
+    if let Ok(p) = opts.from_str::<Probe>(text)
+        && p.format > FORMAT_VERSION
+    {
+        return Err(LoadError::Version { found: p.format });
     }
     let mut book: Workbook = opts.from_str(text).map_err(syntax)?;
     book.resolve().map_err(LoadError::Book)?;
@@ -206,7 +207,10 @@ pub fn stale_results(book: &Workbook, engine: &Engine) -> Vec<String> {
     let mut out = Vec::new();
     for row in stored {
         let Some(f) = fresh.iter().find(|r| r.row == row.row) else {
-            out.push(format!("{}: stored results for a station that no longer exists", row.row));
+            out.push(format!(
+                "{}: stored results for a station that no longer exists",
+                row.row
+            ));
             continue;
         };
         for (k, v) in &row.values {

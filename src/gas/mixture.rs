@@ -50,7 +50,11 @@ impl Polynomial {
                 model: "thermally perfect",
             });
         }
-        Ok(if t <= self.t_mid { &self.low } else { &self.high })
+        Ok(if t <= self.t_mid {
+            &self.low
+        } else {
+            &self.high
+        })
     }
 
     #[inline]
@@ -62,8 +66,7 @@ impl Polynomial {
     fn h_of(a: &[f64; 9], t: f64, ln_t: f64) -> f64 {
         -a[0] / t
             + a[1] * ln_t
-            + t * (a[2]
-                + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))))
+            + t * (a[2] + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))))
             + a[7]
     }
     #[inline]

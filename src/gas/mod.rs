@@ -28,7 +28,7 @@ pub use species::{Composition, Fuel, MixtureBuilder, Species, stoichiometric_far
 use thiserror::Error;
 
 /// Universal gas constant, J/(kmol K): the exact SI value N_A k (also Cantera 3.2).
-pub const R_UNIVERSAL: f64 = 8314.462_618_153_24;
+pub const R_UNIVERSAL: f64 = 8_314.462_618_153_24;
 /// Reference temperature of sensible enthalpy and heating values, K.
 pub const T_REFERENCE: f64 = 298.15;
 
@@ -341,12 +341,7 @@ fn invert<G: Thermo + ?Sized>(
         } else {
             hi_t * 1.001
         };
-        return Err(GasError::OutOfRange {
-            t,
-            min,
-            max,
-            model,
-        });
+        return Err(GasError::OutOfRange { t, min, max, model });
     }
     let (mut lo, mut hi) = (lo_t, hi_t);
     let mut t = if guess.is_finite() && guess > lo && guess < hi {
@@ -404,7 +399,11 @@ mod tests {
             // The two NASA ranges meet at 1000 K with a jump of about 2e-9 in h
             // (the published data, not the inversion), hence 1e-9.
             assert_relative_eq!(invert_h(&air, h, 800.0).unwrap(), t, max_relative = 1e-9);
-            assert_relative_eq!(invert_phi(&air, phi, 800.0).unwrap(), t, max_relative = 1e-9);
+            assert_relative_eq!(
+                invert_phi(&air, phi, 800.0).unwrap(),
+                t,
+                max_relative = 1e-9
+            );
         }
         // Below the range: an error, not an extrapolation.
         let h150 = air.h(200.0).unwrap() - 60_000.0;

@@ -146,7 +146,7 @@ impl Fuel {
 
     /// A fuel of a given H/C molar ratio (0 to 4, methane being 4).
     pub fn new(hc: f64) -> Result<Fuel, GasError> {
-        if !(hc.is_finite() && hc >= 0.0 && hc <= 4.0) {
+        if !(hc.is_finite() && (0.0..=4.0).contains(&hc)) {
             return Err(GasError::BadParameter {
                 what: "fuel H/C ratio",
                 value: hc,

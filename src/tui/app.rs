@@ -1,0 +1,1635 @@
+//! Application state and its update: keys become commands, commands change
+//! the state through the engine. Views read `&App` and never change it.
+
+use super::keymap::{Command, Keymap, key_of};
+use super::settings::{self, Settings};
+use crate::book::{
+    Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given,
+    Heating, Kind, Nozzle, Oblique, Process, Shape, Station, Statics, Turbine, Workbook,
+};
+use crate::engine::{Engine, StationStatus, sweep};
+use crate::flow::Branch;
+use crate::flow::shock::Strength;
+use crate::format;
+use crate::units::{self, Quantity, UnitSystem};
+use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
+use std::path::{Path, PathBuf};
+use std::time::SystemTime;
+
+/// The main views.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum View {
+    /// Station grid, process panel, summary.
+    Grid,
+    /// Station-by-station explanations.
+    Walk,
+    /// Tt-s chart.
+    Chart,
+    /// Sweep chart and table.
+    Sweep,
+}
+
+/// Which pane of the grid view has the keys.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Focus {
+    /// The station grid.
+    Grid,
+    /// The process panel.
+    Panel,
+}
+
+/// Column sets of the grid.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Columns {
+    /// Totals and flow.
+    Totals,
+    /// Static state.
+    Statics,
+    /// Flow and area.
+    Flow,
+    /// Everything.
+    All,
+}
+
+impl Columns {
+    /// The station keys shown.
+    pub fn keys(self) -> &'static [&'static str] {
+        match self {
+            Columns::Totals => &["tt", "pt", "w", "far", "wc", "ht"],
+            Columns::Statics => &["t", "p", "mach", "v", "rho", "a"],
+            Columns::Flow => &["w", "area", "mach", "wc", "q", "flow_function"],
+            Columns::All => &[
+                "tt", "pt", "t", "p", "mach", "v", "w", "area", "far", "wc", "rho", "s",
+            ],
+        }
+    }
+    /// Name for the title bar.
+    pub fn name(self) -> &'static str {
+        match self {
+            Columns::Totals => "totals",
+            Columns::Statics => "statics",
+            Columns::Flow => "flow",
+            Columns::All => "all",
+        }
+    }
+    fn next(self) -> Columns {
+        match self {
+            Columns::Totals => Columns::Statics,
+            Columns::Statics => Columns::Flow,
+            Columns::Flow => Columns::All,
+            Columns::All => Columns::Totals,
+        }
+    }
+}
+
+/// What a confirmation leads to.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Pending {
+    /// Quit without saving.
+    Quit,
+    /// Save over a file that changed on disk.
+    SaveOver,
+    /// Load the recovery file of this workbook.
+    LoadRecovery(PathBuf),
+    /// Discard changes, then ask for a file to open.
+    OpenOther,
+}
+
+/// What a text prompt is for.
+#[derive(Debug, Clone, PartialEq)]
+pub enum TextFor {
+    /// Rename station (index).
+    RenameStation(usize),
+    /// Rename process (index).
+    RenameProcess(usize),
+    /// Save under a path.
+    SaveAs,
+    /// Open a path.
+    Open,
+    /// Name of a new station after the given index.
+    Insert(usize),
+}
+
+/// What a choice list is for.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ChooseFor {
+    /// A process kind for the process into the selected station.
+    Kind,
+    /// The start screen: recent files and templates.
+    Start(Vec<StartItem>),
+}
+
+/// An entry of the start screen.
+#[derive(Debug, Clone, PartialEq)]
+pub enum StartItem {
+    /// A recent file.
+    File(PathBuf),
+    /// A template by name.
+    Template(&'static str),
+}
+
+/// Popups, drawn as layers over the view; the top one takes the keys.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Popup {
+    /// Edit a given.
+    Edit {
+        /// Path of the given.
+        path: String,
+        /// Its quantity (for the accepted units hint).
+        quantity: Quantity,
+        /// The text being typed.
+        input: String,
+    },
+    /// A yes/no question.
+    Confirm {
+        /// The question.
+        text: String,
+        /// What yes does.
+        then: Pending,
+    },
+    /// A line of text.
+    Text {
+        /// Title.
+        title: String,
+        /// The text being typed.
+        input: String,
+        /// What it is for.
+        purpose: TextFor,
+    },
+    /// Pick one of a list.
+    Choose {
+        /// Title.
+        title: String,
+        /// Items shown.
+        items: Vec<String>,
+        /// Selected item.
+        sel: usize,
+        /// What it is for.
+        purpose: ChooseFor,
+    },
+    /// Ambient block and gas model.
+    Setup {
+        /// Selected row.
+        sel: usize,
+    },
+    /// Sweep set-up form: vary, from, to, steps, report.
+    SweepForm {
+        /// Field texts.
+        fields: [String; 5],
+        /// Focused field.
+        sel: usize,
+    },
+    /// Help overlay.
+    Help {
+        /// Scroll offset.
+        scroll: u16,
+    },
+}
+
+/// A row of the process panel.
+#[derive(Debug, Clone, PartialEq)]
+pub enum PanelRow {
+    /// A given of the station or the process.
+    Given(String),
+    /// How the station's static state is fixed (cycles on Enter).
+    Statics,
+    /// Subsonic or supersonic branch (toggles on Enter).
+    Branch,
+}
+
+/// A computed sweep.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepData {
+    /// Path varied.
+    pub vary: String,
+    /// Paths reported.
+    pub report: Vec<String>,
+    /// Rows.
+    pub rows: Vec<sweep::Row>,
+}
+
+/// The whole application state.
+pub struct App {
+    /// The engine over the open workbook (None on the start screen).
+    pub engine: Option<Engine>,
+    /// File of the workbook.
+    pub path: Option<PathBuf>,
+    /// Unsaved changes.
+    pub modified: bool,
+    /// Modification time and length of the file when read or saved.
+    pub disk: Option<(SystemTime, u64)>,
+    /// Current view.
+    pub view: View,
+    /// Focus in the grid view.
+    pub focus: Focus,
+    /// Selected station.
+    pub row: usize,
+    /// Selected grid column.
+    pub col: usize,
+    /// Selected panel row.
+    pub panel: usize,
+    /// Grid columns.
+    pub columns: Columns,
+    /// Display units.
+    pub system: UnitSystem,
+    /// Undo stack (workbooks before each change).
+    pub undo: Vec<Workbook>,
+    /// Redo stack.
+    pub redo: Vec<Workbook>,
+    /// Popups, top last.
+    pub popups: Vec<Popup>,
+    /// Status message and whether it is an error.
+    pub status: Option<(String, bool)>,
+    /// Keymap.
+    pub keymap: Keymap,
+    /// Settings.
+    pub settings: Settings,
+    /// Last sweep.
+    pub sweep: Option<SweepData>,
+    /// Set when the app should end.
+    pub quit: bool,
+}
+
+fn stamp(p: &Path) -> Option<(SystemTime, u64)> {
+    let m = std::fs::metadata(p).ok()?;
+    Some((m.modified().ok()?, m.len()))
+}
+
+/// The recovery file written beside a workbook when the session is cut.
+pub fn recovery_path(path: Option<&Path>) -> Option<PathBuf> {
+    match path {
+        Some(p) => {
+            let name = p.file_name()?.to_string_lossy().to_string();
+            Some(p.with_file_name(format!("{name}.recovery")))
+        }
+        None => settings::recent_path().map(|r| r.with_file_name("untitled.ron.recovery")),
+    }
+}
+
+impl App {
+    /// An app with settings, on the start screen.
+    pub fn new(settings: Settings) -> App {
+        let (keymap, bad) = Keymap::with_overrides(&settings.keys);
+        let mut app = App {
+            engine: None,
+            path: None,
+            modified: false,
+            disk: None,
+            view: View::Grid,
+            focus: Focus::Grid,
+            row: 0,
+            col: 0,
+            panel: 0,
+            columns: Columns::Totals,
+            system: if settings.us_units {
+                UnitSystem::Us
+            } else {
+                UnitSystem::Si
+            },
+            undo: Vec::new(),
+            redo: Vec::new(),
+            popups: Vec::new(),
+            status: None,
+            keymap,
+            settings,
+            sweep: None,
+            quit: false,
+        };
+        if !bad.is_empty() {
+            app.error(format!("settings: keys not understood: {}", bad.join("; ")));
+        }
+        app
+    }
+
+    /// Show the start screen (recent files and templates).
+    pub fn start_screen(&mut self) {
+        let mut items = Vec::new();
+        let mut labels = Vec::new();
+        for f in settings::recent().into_iter().filter(|f| f.exists()) {
+            labels.push(format!("open   {}", f.display()));
+            items.push(StartItem::File(f));
+        }
+        for (n, d, _) in crate::templates::TEMPLATES {
+            labels.push(format!("new    {n}: {d}"));
+            items.push(StartItem::Template(n));
+        }
+        self.popups.push(Popup::Choose {
+            title: "stationwise: open a recent workbook or start from a demo".into(),
+            items: labels,
+            sel: 0,
+            purpose: ChooseFor::Start(items),
+        });
+    }
+
+    /// Open a workbook file (offers its recovery file when one exists).
+    pub fn open(&mut self, path: &Path) -> Result<(), String> {
+        let book = format::load(path).map_err(|e| format!("{}: {e}", path.display()))?;
+        let engine = Engine::new(book).map_err(|e| crate::present::join(&e))?;
+        self.engine = Some(engine);
+        self.path = Some(path.to_path_buf());
+        self.disk = stamp(path);
+        self.modified = false;
+        self.undo.clear();
+        self.redo.clear();
+        self.row = 0;
+        self.panel = 0;
+        self.sweep = None;
+        settings::remember(path);
+        self.info(format!("opened {}", path.display()));
+        if let Some(rp) = recovery_path(Some(path)) {
+            if rp.exists() {
+                self.popups.push(Popup::Confirm {
+                    text: format!(
+                        "A recovery file from an interrupted session exists ({}). Load it? y loads it (then save to keep it), n deletes it.",
+                        rp.display()
+                    ),
+                    then: Pending::LoadRecovery(rp),
+                });
+            }
+        }
+        Ok(())
+    }
+
+    /// Start from a template (untitled until saved).
+    pub fn open_template(&mut self, name: &str) -> Result<(), String> {
+        let text = crate::templates::get(name).ok_or("no such template")?;
+        let book = format::parse(text).map_err(|e| e.to_string())?;
+        self.engine = Some(Engine::new(book).map_err(|e| crate::present::join(&e))?);
+        self.path = None;
+        self.disk = None;
+        self.modified = true;
+        self.undo.clear();
+        self.redo.clear();
+        self.row = 0;
+        self.info(format!("new workbook from the {name} demo (save with ctrl-s)"));
+        Ok(())
+    }
+
+    fn info(&mut self, m: impl Into<String>) {
+        self.status = Some((m.into(), false));
+    }
+    fn error(&mut self, m: impl Into<String>) {
+        self.status = Some((m.into(), true));
+    }
+
+    /// The open workbook.
+    pub fn book(&self) -> Option<&Workbook> {
+        self.engine.as_ref().map(|e| e.book())
+    }
+
+    /// Handle a key press.
+    pub fn on_key(&mut self, ev: KeyEvent) {
+        if !self.popups.is_empty() {
+            self.popup_key(ev);
+            return;
+        }
+        if self.engine.is_none() {
+            if let Some(Command::Quit) = self.keymap.command(key_of(&ev)) {
+                self.quit = true;
+            } else {
+                self.start_screen();
+            }
+            return;
+        }
+        if let Some(c) = self.keymap.command(key_of(&ev)) {
+            self.status = None;
+            self.run(c);
+        }
+    }
+
+    /// Number of stations.
+    fn n_stations(&self) -> usize {
+        self.book().map_or(0, |b| b.stations.len())
+    }
+
+    /// Rows of the process panel for the selected station.
+    pub fn panel_rows(&self) -> Vec<PanelRow> {
+        let Some(b) = self.book() else {
+            return Vec::new();
+        };
+        let Some(st) = b.stations.get(self.row) else {
+            return Vec::new();
+        };
+        let mut rows = Vec::new();
+        let sp = format!("station.{}.", st.name);
+        let e = self.engine.as_ref();
+        let producer = e.map(|e| &b.processes[e.producer_of(self.row)]);
+        let pp = producer.map(|p| format!("process.{}.", p.name));
+        for (path, ..) in b.givens() {
+            if path.starts_with(&sp) && path[sp.len()..].find('.').is_none() {
+                rows.push(PanelRow::Given(path));
+            }
+        }
+        let sets_own = producer.is_some_and(|p| {
+            matches!(
+                p.kind,
+                Kind::NormalShock
+                    | Kind::ObliqueShock(_)
+                    | Kind::Nozzle(_)
+                    | Kind::Heating(_)
+                    | Kind::Mixer(_)
+                    | Kind::Duct(Duct::Friction { .. })
+            ) || matches!(p.kind, Kind::Entry(Entry::Freestream { .. })) && st.statics.is_none()
+        });
+        if !sets_own {
+            rows.push(PanelRow::Statics);
+            rows.push(PanelRow::Branch);
+        }
+        if let Some(pp) = pp {
+            for (path, ..) in b.givens() {
+                if path.starts_with(&pp) {
+                    rows.push(PanelRow::Given(path));
+                }
+            }
+        }
+        rows
+    }
+
+    /// The given path behind a grid cell, if the cell is a given.
+    pub fn cell_given(&self, station: usize, key: &str) -> Option<String> {
+        let b = self.book()?;
+        let e = self.engine.as_ref()?;
+        let st = b.stations.get(station)?;
+        let own = format!("station.{}.{key}", st.name);
+        let p = &b.processes[e.producer_of(station)];
+        let proc_key = match (&p.kind, key) {
+            (Kind::Entry(Entry::Plenum { .. }), "tt" | "pt" | "w") => Some(key),
+            (Kind::Entry(Entry::ChokedPlenum { .. }), "tt" | "pt") => Some(key),
+            (Kind::Entry(Entry::Freestream { .. }), "w") => Some("w"),
+            (
+                Kind::Combustor(Combustor {
+                    mode: Burn::ExitTemperature(_),
+                    ..
+                }),
+                "tt",
+            ) => Some("exit_tt"),
+            (Kind::Heating(Heating::ExitTemperature(_)), "tt") => Some("exit_tt"),
+            _ => None,
+        };
+        let givens = b.givens();
+        if givens.iter().any(|(g, ..)| *g == own) {
+            return Some(own);
+        }
+        proc_key.map(|k| format!("process.{}.{k}", p.name))
+    }
+
+    fn run(&mut self, c: Command) {
+        match c {
+            Command::Quit => {
+                if self.modified {
+                    self.popups.push(Popup::Confirm {
+                        text: "There are unsaved changes. Quit without saving? (y/n)".into(),
+                        then: Pending::Quit,
+                    });
+                } else {
+                    self.quit = true;
+                }
+            }
+            Command::Up => self.move_sel(-1),
+            Command::Down => self.move_sel(1),
+            Command::Left => self.col = self.col.saturating_sub(1),
+            Command::Right => {
+                self.col = (self.col + 1).min(self.columns.keys().len().saturating_sub(1))
+            }
+            Command::Focus => {
+                if self.view == View::Grid {
+                    self.focus = match self.focus {
+                        Focus::Grid => Focus::Panel,
+                        Focus::Panel => Focus::Grid,
+                    };
+                    self.panel = 0;
+                }
+            }
+            Command::Edit => self.edit_selected(),
+            Command::ViewGrid => self.view = View::Grid,
+            Command::ViewWalk => self.view = View::Walk,
+            Command::ViewChart => self.view = View::Chart,
+            Command::ViewSweep => {
+                self.view = View::Sweep;
+                if self.sweep.is_none() {
+                    self.open_sweep_form();
+                }
+            }
+            Command::Units => {
+                self.system = match self.system {
+                    UnitSystem::Si => UnitSystem::Us,
+                    UnitSystem::Us => UnitSystem::Si,
+                };
+                self.info(match self.system {
+                    UnitSystem::Si => "SI units",
+                    UnitSystem::Us => "US customary units",
+                });
+            }
+            Command::Columns => {
+                self.columns = self.columns.next();
+                self.col = self.col.min(self.columns.keys().len() - 1);
+            }
+            Command::Undo => self.undo(),
+            Command::Redo => self.redo(),
+            Command::Save => self.save(false),
+            Command::SaveAs => self.popups.push(Popup::Text {
+                title: "save as (file path)".into(),
+                input: self
+                    .path
+                    .as_ref()
+                    .map_or("workbook.ron".into(), |p| p.display().to_string()),
+                purpose: TextFor::SaveAs,
+            }),
+            Command::Open => {
+                if self.modified {
+                    self.popups.push(Popup::Confirm {
+                        text: "Discard unsaved changes and open another workbook? (y/n)".into(),
+                        then: Pending::OpenOther,
+                    });
+                } else {
+                    self.ask_open();
+                }
+            }
+            Command::Insert => {
+                let name = self
+                    .book()
+                    .and_then(|b| b.stations.get(self.row))
+                    .map_or("new".into(), |s| format!("{}a", s.name));
+                self.popups.push(Popup::Text {
+                    title: "name of the new station (a duct leads into it)".into(),
+                    input: name,
+                    purpose: TextFor::Insert(self.row),
+                });
+            }
+            Command::Delete => self.delete_station(),
+            Command::Rename => self.rename(),
+            Command::Kind => {
+                let items = KIND_NAMES.iter().map(|s| s.to_string()).collect();
+                self.popups.push(Popup::Choose {
+                    title: "kind of the process into this station".into(),
+                    items,
+                    sel: 0,
+                    purpose: ChooseFor::Kind,
+                });
+            }
+            Command::Mode => self.cycle_mode(),
+            Command::Setup => self.popups.push(Popup::Setup { sel: 0 }),
+            Command::Help => self.popups.push(Popup::Help { scroll: 0 }),
+        }
+    }
+
+    fn ask_open(&mut self) {
+        self.popups.push(Popup::Text {
+            title: "open workbook (file path)".into(),
+            input: String::new(),
+            purpose: TextFor::Open,
+        });
+    }
+
+    fn move_sel(&mut self, d: isize) {
+        if self.view == View::Grid && self.focus == Focus::Panel {
+            let n = self.panel_rows().len();
+            if n > 0 {
+                self.panel = (self.panel as isize + d).clamp(0, n as isize - 1) as usize;
+            }
+            return;
+        }
+        let n = self.n_stations();
+        if n > 0 {
+            self.row = (self.row as isize + d).clamp(0, n as isize - 1) as usize;
+        }
+        self.panel = 0;
+    }
+
+    fn edit_selected(&mut self) {
+        if self.view != View::Grid {
+            return;
+        }
+        let path = match self.focus {
+            Focus::Grid => {
+                let key = self.columns.keys()[self.col.min(self.columns.keys().len() - 1)];
+                match self.cell_given(self.row, key) {
+                    Some(p) => p,
+                    None => {
+                        let by = self.book().and_then(|b| {
+                            let e = self.engine.as_ref()?;
+                            Some(b.processes[e.producer_of(self.row)].name.clone())
+                        });
+                        self.info(format!(
+                            "this value is derived by \"{}\"; Tab to edit its parameters",
+                            by.unwrap_or_default()
+                        ));
+                        return;
+                    }
+                }
+            }
+            Focus::Panel => match self.panel_rows().get(self.panel).cloned() {
+                Some(PanelRow::Given(p)) => p,
+                Some(PanelRow::Statics) => {
+                    self.cycle_statics();
+                    return;
+                }
+                Some(PanelRow::Branch) => {
+                    self.toggle_branch();
+                    return;
+                }
+                None => return,
+            },
+        };
+        let Some((_, q, text, _)) = self
+            .book()
+            .and_then(|b| b.givens().into_iter().find(|(p, ..)| *p == path))
+        else {
+            return;
+        };
+        self.popups.push(Popup::Edit {
+            path,
+            quantity: q,
+            input: text,
+        });
+    }
+
+    /// Apply a typed value to a given: recompute at once, or refuse and keep the old one.
+    pub fn apply_edit(&mut self, path: &str, text: &str) -> Result<(), String> {
+        let Some(engine) = self.engine.as_mut() else {
+            return Err("no workbook".into());
+        };
+        let before = engine.book().clone();
+        engine.set_given(path, text).map_err(|e| e.to_string())?;
+        self.undo.push(before);
+        self.redo.clear();
+        self.modified = true;
+        let problems = self.engine.as_ref().map_or(0, |e| e.problems().len());
+        if problems > 0 {
+            self.error(format!("{path} = {text}: recomputed; {problems} problem(s), see the marked stations"));
+        } else {
+            self.info(format!("{path} = {text}: recomputed"));
+        }
+        Ok(())
+    }
+
+    /// Replace the workbook after a structural edit (kept undoable).
+    pub fn commit(&mut self, book: Workbook, what: &str) {
+        let Some(engine) = self.engine.as_mut() else {
+            return;
+        };
+        let before = engine.book().clone();
+        match engine.replace_book(book) {
+            Ok(()) => {
+                self.undo.push(before);
+                self.redo.clear();
+                self.modified = true;
+                self.info(what.to_string());
+            }
+            Err(e) => {
+                let _ = engine.replace_book(before);
+                self.error(format!("not done: {}", crate::present::join(&e)));
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = 0;
+    }
+
+    fn undo(&mut self) {
+        let Some(prev) = self.undo.pop() else {
+            self.info("nothing to undo");
+            return;
+        };
+        if let Some(e) = self.engine.as_mut() {
+            let cur = e.book().clone();
+            if e.replace_book(prev).is_ok() {
+                self.redo.push(cur);
+                self.modified = true;
+                self.info("undone");
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+    }
+
+    fn redo(&mut self) {
+        let Some(next) = self.redo.pop() else {
+            self.info("nothing to redo");
+            return;
+        };
+        if let Some(e) = self.engine.as_mut() {
+            let cur = e.book().clone();
+            if e.replace_book(next).is_ok() {
+                self.undo.push(cur);
+                self.modified = true;
+                self.info("redone");
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+    }
+
+    /// Save (asks first when the file changed on disk since it was read).
+    pub fn save(&mut self, force: bool) {
+        let Some(path) = self.path.clone() else {
+            self.run(Command::SaveAs);
+            return;
+        };
+        if !force && self.disk.is_some() && stamp(&path) != self.disk {
+            self.popups.push(Popup::Confirm {
+                text: format!(
+                    "{} changed on disk since it was opened. Save over it? (y/n)",
+                    path.display()
+                ),
+                then: Pending::SaveOver,
+            });
+            return;
+        }
+        self.save_to(&path);
+    }
+
+    fn save_to(&mut self, path: &Path) {
+        let Some(engine) = self.engine.as_ref() else {
+            return;
+        };
+        let mut book = engine.book().clone();
+        format::refresh_results(&mut book, engine);
+        match format::save(path, &book) {
+            Ok(()) => {
+                self.path = Some(path.to_path_buf());
+                self.disk = stamp(path);
+                self.modified = false;
+                settings::remember(path);
+                if let Some(rp) = recovery_path(Some(path)) {
+                    let _ = std::fs::remove_file(rp);
+                }
+                self.info(format!("saved {}", path.display()));
+            }
+            Err(e) => self.error(format!("cannot save {}: {e}", path.display())),
+        }
+    }
+
+    /// Write the recovery file (on a dropped session). Returns its path.
+    pub fn write_recovery(&self) -> Option<PathBuf> {
+        if !self.modified {
+            return None;
+        }
+        let book = self.book()?;
+        let rp = recovery_path(self.path.as_deref())?;
+        if let Some(d) = rp.parent() {
+            let _ = std::fs::create_dir_all(d);
+        }
+        format::write_atomic_with(&rp, format::to_text(book).as_bytes(), || Ok(())).ok()?;
+        Some(rp)
+    }
+
+    fn station_name(&self, i: usize) -> Option<String> {
+        self.book()?.stations.get(i).map(|s| s.name.clone())
+    }
+
+    fn delete_station(&mut self) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let Some(name) = self.station_name(self.row) else {
+            return;
+        };
+        let Some(pi) = b.processes.iter().position(|p| p.to == name) else {
+            self.error("this station is a split's second stream: delete or change the split instead");
+            return;
+        };
+        let p = &b.processes[pi];
+        let readers = b
+            .processes
+            .iter()
+            .filter(|q| q.from.as_deref() == Some(&name))
+            .count();
+        let Some(upstream) = p.from.clone() else {
+            if readers > 0 {
+                self.error("cannot delete the entry station while processes read it");
+                return;
+            }
+            let mut nb = b.clone();
+            nb.processes.remove(pi);
+            nb.stations.retain(|s| s.name != name);
+            self.commit(nb, &format!("deleted station {name}"));
+            return;
+        };
+        if matches!(p.kind, Kind::Split(_) | Kind::Mixer(_)) {
+            self.error("delete the second stream's stations first, or change this process's kind");
+            return;
+        }
+        let mut nb = b.clone();
+        nb.processes.remove(pi);
+        nb.stations.retain(|s| s.name != name);
+        for q in &mut nb.processes {
+            if q.from.as_deref() == Some(&name) {
+                q.from = Some(upstream.clone());
+            }
+            if let Kind::Mixer(m) = &mut q.kind {
+                if m.secondary == name {
+                    m.secondary = upstream.clone();
+                }
+            }
+        }
+        nb.results = None;
+        self.commit(nb, &format!("deleted station {name} and the process into it"));
+    }
+
+    fn insert_station(&mut self, after: usize, name: &str) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let name = name.trim();
+        if name.is_empty() || b.stations.iter().any(|s| s.name == name) {
+            self.error(format!("station name \"{name}\" is empty or already used"));
+            return;
+        }
+        let Some(sel) = b.stations.get(after).map(|s| s.name.clone()) else {
+            return;
+        };
+        let mut nb = b.clone();
+        for q in &mut nb.processes {
+            if q.from.as_deref() == Some(&sel) {
+                q.from = Some(name.to_string());
+            }
+            if let Kind::Mixer(m) = &mut q.kind {
+                if m.secondary == sel {
+                    m.secondary = name.to_string();
+                }
+            }
+        }
+        let mut pname = format!("duct {name}");
+        while nb.processes.iter().any(|p| p.name == pname) {
+            pname.push('\'');
+        }
+        let at = nb
+            .processes
+            .iter()
+            .position(|p| p.to == sel)
+            .map_or(nb.processes.len(), |i| i + 1);
+        nb.processes.insert(
+            at,
+            Process {
+                name: pname,
+                from: Some(sel),
+                to: name.to_string(),
+                kind: Kind::Duct(Duct::Recovery {
+                    recovery: Given::raw("1"),
+                }),
+                note: String::new(),
+            },
+        );
+        nb.stations.insert(after + 1, Station::named(name));
+        if nb.resolve().is_err() {
+            self.error("internal: new station did not resolve");
+            return;
+        }
+        nb.results = None;
+        self.commit(nb, &format!("inserted station {name} with a loss-free duct into it"));
+        self.row = (after + 1).min(self.n_stations().saturating_sub(1));
+    }
+
+    fn rename(&mut self) {
+        let Some(b) = self.book() else {
+            return;
+        };
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        if self.focus == Focus::Panel && self.view == View::Grid {
+            let pi = e.producer_of(self.row);
+            self.popups.push(Popup::Text {
+                title: "new name of the process".into(),
+                input: b.processes[pi].name.clone(),
+                purpose: TextFor::RenameProcess(pi),
+            });
+        } else if let Some(s) = b.stations.get(self.row) {
+            self.popups.push(Popup::Text {
+                title: "new name of the station".into(),
+                input: s.name.clone(),
+                purpose: TextFor::RenameStation(self.row),
+            });
+        }
+    }
+
+    fn do_rename_station(&mut self, i: usize, new: &str) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let new = new.trim();
+        let Some(old) = b.stations.get(i).map(|s| s.name.clone()) else {
+            return;
+        };
+        if new.is_empty() || (new != old && b.stations.iter().any(|s| s.name == new)) {
+            self.error(format!("station name \"{new}\" is empty or already used"));
+            return;
+        }
+        let mut nb = b;
+        nb.stations[i].name = new.to_string();
+        let fix = |s: &mut String| {
+            if *s == old {
+                *s = new.to_string();
+            }
+        };
+        for p in &mut nb.processes {
+            fix(&mut p.to);
+            if let Some(f) = &mut p.from {
+                fix(f);
+            }
+            match &mut p.kind {
+                Kind::Split(s) => fix(&mut s.bypass),
+                Kind::Mixer(m) => fix(&mut m.secondary),
+                _ => {}
+            }
+        }
+        nb.results = None;
+        self.commit(nb, &format!("renamed station {old} to {new}"));
+    }
+
+    fn do_rename_process(&mut self, i: usize, new: &str) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let new = new.trim();
+        if new.is_empty() || b.processes.iter().enumerate().any(|(j, p)| j != i && p.name == new) {
+            self.error(format!("process name \"{new}\" is empty or already used"));
+            return;
+        }
+        let mut nb = b;
+        let old = std::mem::replace(&mut nb.processes[i].name, new.to_string());
+        for g in &mut nb.goals {
+            for s in [&mut g.vary, &mut g.target] {
+                let pre = format!("process.{old}.");
+                if let Some(rest) = s.strip_prefix(&pre) {
+                    *s = format!("process.{new}.{rest}");
+                }
+            }
+        }
+        self.commit(nb, &format!("renamed process {old} to {new}"));
+    }
+
+    fn cycle_statics(&mut self) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let v = e.station(&nb.stations[self.row].name).copied();
+        let st = &mut nb.stations[self.row];
+        let f = v.and_then(|v| v.flow);
+        let next = match &st.statics {
+            None => Some(Statics::Mach(Given::raw(&fmt_num(f.map_or(0.5, |f| f.mach))))),
+            Some(Statics::Mach(_)) => Some(Statics::Pressure(Given::raw(&format!(
+                "{} kPa",
+                fmt_num(f.map_or(100.0, |f| f.p / 1000.0))
+            )))),
+            Some(Statics::Pressure(_)) => Some(Statics::Velocity(Given::raw(&format!(
+                "{} m/s",
+                fmt_num(f.map_or(100.0, |f| f.v))
+            )))),
+            Some(Statics::Velocity(_)) => Some(Statics::Area(Given::raw(&format!(
+                "{} m2",
+                fmt_num(v.and_then(|v| v.area).unwrap_or(0.1))
+            )))),
+            Some(Statics::Area(_)) => None,
+        };
+        st.statics = next;
+        let what = match &st.statics {
+            None => "static state not fixed at this station".to_string(),
+            Some(s) => format!("static state fixed by {}", statics_name(s)),
+        };
+        if nb.resolve().is_ok() {
+            self.commit(nb, &what);
+        }
+    }
+
+    fn toggle_branch(&mut self) {
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let st = &mut nb.stations[self.row];
+        st.branch = match st.branch {
+            Some(Branch::Supersonic) => None,
+            _ => Some(Branch::Supersonic),
+        };
+        let what = if st.branch.is_some() { "supersonic branch" } else { "subsonic branch" };
+        self.commit(nb, what);
+    }
+
+    fn cycle_mode(&mut self) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let p = &mut nb.processes[pi];
+        let next = next_mode(&p.kind);
+        let Some(k) = next else {
+            self.info("this kind of process has one mode");
+            return;
+        };
+        p.kind = k;
+        let label = mode_label(&p.kind);
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(nb, &format!("mode: {label}"));
+        self.panel = 0;
+    }
+
+    fn set_kind(&mut self, idx: usize) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let Some(kind) = default_kind(idx) else {
+            return;
+        };
+        let is_entry = matches!(kind, Kind::Entry(_));
+        let p = &mut nb.processes[pi];
+        if is_entry != p.from.is_none() {
+            self.error(if is_entry {
+                "an entry takes no upstream station: pick it for the first station only"
+            } else {
+                "the first station needs an entry"
+            });
+            return;
+        }
+        p.kind = kind;
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        let label = KIND_NAMES.get(idx).copied().unwrap_or("");
+        self.commit(nb, &format!("process is now a {label}"));
+    }
+
+    fn open_sweep_form(&mut self) {
+        let Some(b) = self.book() else {
+            return;
+        };
+        let givens = b.givens();
+        let pick = match self.panel_rows().get(self.panel) {
+            Some(PanelRow::Given(p)) if self.focus == Focus::Panel => Some(p.clone()),
+            _ => None,
+        }
+        .or_else(|| {
+            givens
+                .iter()
+                .find(|(p, ..)| p.starts_with("process."))
+                .map(|(p, ..)| p.clone())
+        })
+        .unwrap_or_default();
+        let cur = givens.iter().find(|(p, ..)| *p == pick);
+        let (from, to) = cur.map_or((String::new(), String::new()), |(_, q, _, si)| {
+            let u = crate::present::unit_of(*q, self.system);
+            let v = units::from_si(*si, u);
+            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) { "" } else { u.symbol };
+            (
+                format!("{} {sym}", fmt_num(v * 0.8)).trim().to_string(),
+                format!("{} {sym}", fmt_num(v * 1.2)).trim().to_string(),
+            )
+        });
+        let report = if self.engine.as_ref().is_some_and(|e| e.summary().thrust_net.is_some()) {
+            "summary.thrust_net, summary.tsfc".to_string()
+        } else {
+            let last = b.stations.last().map_or(String::new(), |s| s.name.clone());
+            format!("station.{last}.tt, station.{last}.pt")
+        };
+        self.popups.push(Popup::SweepForm {
+            fields: [pick, from, to, "20".into(), report],
+            sel: 0,
+        });
+    }
+
+    fn run_sweep(&mut self, fields: &[String; 5]) -> Result<(), String> {
+        let e = self.engine.as_ref().ok_or("no workbook")?;
+        let vary = fields[0].trim().to_string();
+        let (_, q, ..) = e
+            .book()
+            .givens()
+            .into_iter()
+            .find(|(p, ..)| *p == vary)
+            .ok_or(format!("no given at \"{vary}\""))?;
+        let from = units::parse(&fields[1], q, "from").map_err(|e| e.to_string())?.si;
+        let to = units::parse(&fields[2], q, "to").map_err(|e| e.to_string())?.si;
+        let steps: usize = fields[3].trim().parse().map_err(|_| "steps: a whole number".to_string())?;
+        if !(1..=2000).contains(&steps) {
+            return Err("steps: 1 to 2000 in the terminal (use the sweep command for more)".into());
+        }
+        let report: Vec<String> = fields[4]
+            .split(',')
+            .map(|s| s.trim().to_string())
+            .filter(|s| !s.is_empty())
+            .collect();
+        if report.is_empty() {
+            return Err("report: at least one derived value path".into());
+        }
+        let rows = sweep::run(e, &vary, &sweep::linspace(from, to, steps), &report).map_err(|e| e.to_string())?;
+        self.sweep = Some(SweepData { vary, report, rows });
+        Ok(())
+    }
+
+    fn popup_key(&mut self, ev: KeyEvent) {
+        let Some(top) = self.popups.pop() else {
+            return;
+        };
+        let code = ev.code;
+        let ctrl = ev.modifiers.contains(KeyModifiers::CONTROL);
+        match top {
+            Popup::Help { scroll } => match code {
+                KeyCode::Down | KeyCode::Char('j') => self.popups.push(Popup::Help { scroll: scroll + 1 }),
+                KeyCode::Up | KeyCode::Char('k') => self.popups.push(Popup::Help { scroll: scroll.saturating_sub(1) }),
+                KeyCode::PageDown => self.popups.push(Popup::Help { scroll: scroll + 10 }),
+                KeyCode::PageUp => self.popups.push(Popup::Help { scroll: scroll.saturating_sub(10) }),
+                _ => {}
+            },
+            Popup::Confirm { text, then } => match code {
+                KeyCode::Char('y') | KeyCode::Char('Y') => self.confirmed(then),
+                KeyCode::Char('n') | KeyCode::Char('N') => {
+                    if let Pending::LoadRecovery(p) = &then {
+                        let _ = std::fs::remove_file(p);
+                        self.info("recovery file deleted");
+                    }
+                }
+                KeyCode::Esc => {}
+                _ => self.popups.push(Popup::Confirm { text, then }),
+            },
+            Popup::Edit { path, quantity, mut input } => match code {
+                KeyCode::Esc => self.info("edit cancelled"),
+                KeyCode::Enter => {
+                    if let Err(e) = self.apply_edit(&path, &input) {
+                        self.error(format!("{e} (old value kept)"));
+                        self.popups.push(Popup::Edit { path, quantity, input });
+                    }
+                }
+                KeyCode::Backspace => {
+                    input.pop();
+                    self.popups.push(Popup::Edit { path, quantity, input });
+                }
+                KeyCode::Char('u') if ctrl => {
+                    input.clear();
+                    self.popups.push(Popup::Edit { path, quantity, input });
+                }
+                KeyCode::Char(c) if !ctrl => {
+                    input.push(c);
+                    self.popups.push(Popup::Edit { path, quantity, input });
+                }
+                _ => self.popups.push(Popup::Edit { path, quantity, input }),
+            },
+            Popup::Text { title, mut input, purpose } => match code {
+                KeyCode::Esc => {}
+                KeyCode::Enter => self.text_done(purpose, &input),
+                KeyCode::Backspace => {
+                    input.pop();
+                    self.popups.push(Popup::Text { title, input, purpose });
+                }
+                KeyCode::Char(c) if !ctrl => {
+                    input.push(c);
+                    self.popups.push(Popup::Text { title, input, purpose });
+                }
+                _ => self.popups.push(Popup::Text { title, input, purpose }),
+            },
+            Popup::Choose { title, items, mut sel, purpose } => match code {
+                KeyCode::Esc => {
+                    if matches!(purpose, ChooseFor::Start(_)) && self.engine.is_none() {
+                        self.quit = true;
+                    }
+                }
+                KeyCode::Char('q') if matches!(purpose, ChooseFor::Start(_)) => self.quit = true,
+                KeyCode::Up | KeyCode::Char('k') => {
+                    sel = sel.saturating_sub(1);
+                    self.popups.push(Popup::Choose { title, items, sel, purpose });
+                }
+                KeyCode::Down | KeyCode::Char('j') => {
+                    sel = (sel + 1).min(items.len().saturating_sub(1));
+                    self.popups.push(Popup::Choose { title, items, sel, purpose });
+                }
+                KeyCode::Enter => match purpose {
+                    ChooseFor::Kind => self.set_kind(sel),
+                    ChooseFor::Start(list) => {
+                        let r = match list.get(sel) {
+                            Some(StartItem::File(f)) => self.open(f),
+                            Some(StartItem::Template(t)) => self.open_template(t),
+                            None => Ok(()),
+                        };
+                        if let Err(e) = r {
+                            self.error(e);
+                            self.popups.push(Popup::Choose { title, items, sel, purpose: ChooseFor::Start(list) });
+                        }
+                    }
+                },
+                _ => self.popups.push(Popup::Choose { title, items, sel, purpose }),
+            },
+            Popup::Setup { mut sel } => {
+                let rows = self.setup_rows();
+                match code {
+                    KeyCode::Esc | KeyCode::Char('q') => {}
+                    KeyCode::Up | KeyCode::Char('k') => {
+                        sel = sel.saturating_sub(1);
+                        self.popups.push(Popup::Setup { sel });
+                    }
+                    KeyCode::Down | KeyCode::Char('j') => {
+                        sel = (sel + 1).min(rows.len().saturating_sub(1));
+                        self.popups.push(Popup::Setup { sel });
+                    }
+                    KeyCode::Enter | KeyCode::Char('e') | KeyCode::Char('m') => {
+                        self.popups.push(Popup::Setup { sel });
+                        match rows.get(sel) {
+                            Some(SetupRow::Given(p)) => {
+                                if let Some((_, q, t, _)) = self.book().and_then(|b| b.givens().into_iter().find(|(g, ..)| g == p)) {
+                                    self.popups.push(Popup::Edit { path: p.clone(), quantity: q, input: t });
+                                }
+                            }
+                            Some(r) => self.toggle_setup(r.clone()),
+                            None => {}
+                        }
+                    }
+                    _ => self.popups.push(Popup::Setup { sel }),
+                }
+            }
+            Popup::SweepForm { mut fields, mut sel } => match code {
+                KeyCode::Esc => {
+                    if self.sweep.is_none() {
+                        self.view = View::Grid;
+                    }
+                }
+                KeyCode::Tab | KeyCode::Down => {
+                    sel = (sel + 1) % 5;
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                }
+                KeyCode::BackTab | KeyCode::Up => {
+                    sel = (sel + 4) % 5;
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                }
+                KeyCode::Enter => {
+                    if let Err(e) = self.run_sweep(&fields) {
+                        self.error(e);
+                        self.popups.push(Popup::SweepForm { fields, sel });
+                    } else {
+                        self.info("sweep done; 4 then Enter to change it");
+                    }
+                }
+                KeyCode::Backspace => {
+                    fields[sel].pop();
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                }
+                KeyCode::Char(c) if !ctrl => {
+                    fields[sel].push(c);
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                }
+                _ => self.popups.push(Popup::SweepForm { fields, sel }),
+            },
+        }
+        // In the sweep view, Enter with no popup reopens the form.
+    }
+
+    fn confirmed(&mut self, then: Pending) {
+        match then {
+            Pending::Quit => self.quit = true,
+            Pending::SaveOver => self.save(true),
+            Pending::OpenOther => self.ask_open(),
+            Pending::LoadRecovery(p) => {
+                match std::fs::read_to_string(&p).map_err(|e| e.to_string()).and_then(|t| format::parse(&t).map_err(|e| e.to_string())) {
+                    Ok(book) => {
+                        self.commit(book, "recovered the interrupted session's changes (save to keep them)");
+                        let _ = std::fs::remove_file(&p);
+                    }
+                    Err(e) => self.error(format!("recovery file unreadable: {e}")),
+                }
+            }
+        }
+    }
+
+    fn text_done(&mut self, purpose: TextFor, input: &str) {
+        match purpose {
+            TextFor::RenameStation(i) => self.do_rename_station(i, input),
+            TextFor::RenameProcess(i) => self.do_rename_process(i, input),
+            TextFor::Insert(i) => self.insert_station(i, input),
+            TextFor::SaveAs => {
+                let p = PathBuf::from(input.trim());
+                if p.as_os_str().is_empty() {
+                    self.error("no file name given");
+                } else {
+                    self.save_to(&p);
+                }
+            }
+            TextFor::Open => {
+                let p = PathBuf::from(input.trim());
+                if let Err(e) = self.open(&p) {
+                    self.error(e);
+                }
+            }
+        }
+    }
+
+    /// Rows of the set-up popup.
+    pub fn setup_rows(&self) -> Vec<SetupRow> {
+        let mut rows = vec![SetupRow::Condition];
+        if let Some(b) = self.book() {
+            for (p, ..) in b.givens() {
+                if p.starts_with("ambient.") && p != "ambient.flight_mach" && p != "ambient.flight_speed" {
+                    rows.push(SetupRow::Given(p));
+                }
+            }
+            rows.push(SetupRow::Flight);
+            for (p, ..) in b.givens() {
+                if p == "ambient.flight_mach" || p == "ambient.flight_speed" {
+                    rows.push(SetupRow::Given(p));
+                }
+            }
+            rows.push(SetupRow::Humidity);
+            rows.push(SetupRow::Gas);
+            for (p, ..) in b.givens() {
+                if p.starts_with("gas.") {
+                    rows.push(SetupRow::Given(p));
+                }
+            }
+            rows.push(SetupRow::KeepResults);
+        }
+        rows
+    }
+
+    fn toggle_setup(&mut self, r: SetupRow) {
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        use crate::book::{Condition, Flight, GasSettings};
+        let what = match r {
+            SetupRow::Condition => {
+                nb.ambient.condition = match nb.ambient.condition {
+                    Condition::Standard { .. } => Condition::Measured {
+                        pressure: Given::raw("101.325 kPa"),
+                        temperature: Given::raw("288.15 K"),
+                    },
+                    Condition::Measured { .. } => Condition::Standard {
+                        altitude: Given::raw("0 m"),
+                        offset: Given::raw("0 K"),
+                        geometric: false,
+                    },
+                };
+                "ambient condition changed"
+            }
+            SetupRow::Flight => {
+                nb.ambient.flight = match nb.ambient.flight {
+                    Flight::Mach(_) => Flight::Speed(Given::raw("0 m/s")),
+                    Flight::Speed(_) => Flight::Mach(Given::raw("0")),
+                };
+                "flight condition changed"
+            }
+            SetupRow::Humidity => {
+                nb.ambient.humidity = match nb.ambient.humidity {
+                    None => Some(Given::raw("0.005")),
+                    Some(_) => None,
+                };
+                "humidity changed"
+            }
+            SetupRow::Gas => {
+                nb.gas = match nb.gas {
+                    GasSettings::ThermallyPerfect => GasSettings::CaloricallyPerfect {
+                        gamma: Given::raw("1.4"),
+                        r: Given::raw("287.05"),
+                        hot_gamma: Some(Given::raw("1.33")),
+                        hot_r: None,
+                    },
+                    GasSettings::CaloricallyPerfect { .. } => GasSettings::ThermallyPerfect,
+                };
+                "gas model changed"
+            }
+            SetupRow::KeepResults => {
+                nb.keep_results = !nb.keep_results;
+                if nb.keep_results { "results will be stored in the file on save" } else { "results will not be stored" }
+            }
+            SetupRow::Given(_) => return,
+        };
+        if let Err(e) = nb.resolve() {
+            self.error(crate::present::join(&e));
+            return;
+        }
+        self.commit(nb, what);
+    }
+}
+
+/// Rows of the set-up popup.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SetupRow {
+    /// Standard atmosphere or measured ambient (toggles).
+    Condition,
+    /// Flight Mach or speed (toggles).
+    Flight,
+    /// Humidity on or off.
+    Humidity,
+    /// Gas model (toggles).
+    Gas,
+    /// Store results in the file.
+    KeepResults,
+    /// A given.
+    Given(String),
+}
+
+fn fmt_num(v: f64) -> String {
+    crate::report::sig(v, 5)
+}
+
+fn statics_name(s: &Statics) -> &'static str {
+    match s {
+        Statics::Mach(_) => "Mach number",
+        Statics::Pressure(_) => "static pressure",
+        Statics::Velocity(_) => "velocity",
+        Statics::Area(_) => "area",
+    }
+}
+
+/// Kinds offered by the kind chooser.
+pub const KIND_NAMES: [&str; 9] = [
+    "duct", "combustor", "Rayleigh heating", "compressor", "turbine", "normal shock",
+    "oblique shock", "nozzle", "entry (plenum)",
+];
+
+fn g(s: &str) -> Given {
+    Given::raw(s)
+}
+
+fn default_kind(i: usize) -> Option<Kind> {
+    Some(match i {
+        0 => Kind::Duct(Duct::Recovery { recovery: g("0.98") }),
+        1 => Kind::Combustor(Combustor {
+            mode: Burn::ExitTemperature(g("1400 K")),
+            pressure_loss: g("4 %"),
+            efficiency: g("0.99"),
+            lhv: g("43 MJ/kg"),
+            hc: g("1.92"),
+        }),
+        2 => Kind::Heating(Heating::Heat(g("100 kJ/kg"))),
+        3 => Kind::Compressor(Compressor {
+            mode: Compression::Design {
+                pressure_ratio: g("4"),
+                efficiency: g("0.86"),
+                basis: Basis::Isentropic,
+            },
+            shaft: None,
+        }),
+        4 => Kind::Turbine(Turbine {
+            mode: Expansion::Design {
+                pressure_ratio: g("2"),
+                efficiency: g("0.9"),
+                basis: Basis::Isentropic,
+            },
+            shaft: None,
+        }),
+        5 => Kind::NormalShock,
+        6 => Kind::ObliqueShock(Oblique {
+            deflection: g("10 deg"),
+            strength: Strength::Weak,
+        }),
+        7 => Kind::Nozzle(Nozzle {
+            shape: Shape::Convergent,
+            exit: Exit::Matched,
+            cv: g("0.98"),
+            cd: g("0.98"),
+        }),
+        8 => Kind::Entry(Entry::Plenum {
+            tt: g("288.15 K"),
+            pt: g("101.325 kPa"),
+            w: g("10 kg/s"),
+        }),
+        _ => return None,
+    })
+}
+
+/// The next mode of a process kind, keeping values where they carry over.
+pub fn next_mode(k: &Kind) -> Option<Kind> {
+    Some(match k {
+        Kind::Entry(Entry::Freestream { w }) => Kind::Entry(Entry::Plenum {
+            tt: g("288.15 K"),
+            pt: g("101.325 kPa"),
+            w: w.clone(),
+        }),
+        Kind::Entry(Entry::Plenum { tt, pt, .. }) => Kind::Entry(Entry::ChokedPlenum {
+            tt: tt.clone(),
+            pt: pt.clone(),
+            throat_area: g("0.01 m2"),
+        }),
+        Kind::Entry(Entry::ChokedPlenum { .. }) => Kind::Entry(Entry::Freestream { w: g("10 kg/s") }),
+        Kind::Duct(d) => Kind::Duct(match d {
+            Duct::Recovery { .. } => Duct::LossCoefficient { k: g("0.5") },
+            Duct::LossCoefficient { .. } => Duct::MeasuredExit,
+            Duct::MeasuredExit => Duct::Friction {
+                length: g("1 m"),
+                diameter: g("0.1 m"),
+                friction: g("0.005"),
+            },
+            Duct::Friction { .. } => Duct::IntakeSchedule,
+            Duct::IntakeSchedule => Duct::Recovery { recovery: g("0.98") },
+        }),
+        Kind::Combustor(c) => {
+            let mut c = c.clone();
+            c.mode = match &c.mode {
+                Burn::ExitTemperature(_) => Burn::FuelFlow(g("0.5 kg/s")),
+                Burn::FuelFlow(w) => Burn::Measured(w.clone()),
+                Burn::Measured(_) => Burn::ExitTemperature(g("1400 K")),
+            };
+            Kind::Combustor(c)
+        }
+        Kind::Heating(Heating::Heat(_)) => Kind::Heating(Heating::ExitTemperature(g("1000 K"))),
+        Kind::Heating(Heating::ExitTemperature(_)) => Kind::Heating(Heating::Heat(g("100 kJ/kg"))),
+        Kind::Compressor(c) => Kind::Compressor(Compressor {
+            mode: match &c.mode {
+                Compression::Design { .. } => Compression::Measured,
+                Compression::Measured => Compression::Design {
+                    pressure_ratio: g("4"),
+                    efficiency: g("0.86"),
+                    basis: Basis::Isentropic,
+                },
+            },
+            shaft: c.shaft.clone(),
+        }),
+        Kind::Turbine(t) => Kind::Turbine(Turbine {
+            mode: match &t.mode {
+                Expansion::Design { efficiency, basis, .. } => Expansion::ShaftWork {
+                    efficiency: efficiency.clone(),
+                    basis: *basis,
+                },
+                Expansion::ShaftWork { .. } => Expansion::Measured,
+                Expansion::Measured => Expansion::Design {
+                    pressure_ratio: g("2"),
+                    efficiency: g("0.9"),
+                    basis: Basis::Isentropic,
+                },
+            },
+            shaft: t.shaft.clone(),
+        }),
+        Kind::ObliqueShock(o) => Kind::ObliqueShock(Oblique {
+            deflection: o.deflection.clone(),
+            strength: match o.strength {
+                Strength::Weak => Strength::Strong,
+                Strength::Strong => Strength::Weak,
+            },
+        }),
+        Kind::Nozzle(n) => {
+            let (shape, exit) = match (&n.shape, &n.exit) {
+                (Shape::Convergent, Exit::Matched) => (Shape::Convergent, Exit::Area(g("0.05 m2"))),
+                (Shape::Convergent, Exit::Area(a)) => (Shape::ConvergentDivergent, Exit::Area(a.clone())),
+                (Shape::ConvergentDivergent, Exit::Area(_)) => (Shape::ConvergentDivergent, Exit::Matched),
+                (Shape::ConvergentDivergent, Exit::Matched) => (Shape::Convergent, Exit::Matched),
+            };
+            Kind::Nozzle(Nozzle { shape, exit, cv: n.cv.clone(), cd: n.cd.clone() })
+        }
+        Kind::NormalShock | Kind::Split(_) | Kind::Mixer(_) => return None,
+    })
+}
+
+/// Human label of a process's kind and mode.
+pub fn mode_label(k: &Kind) -> String {
+    match k {
+        Kind::Entry(Entry::Freestream { .. }) => "entry: free stream from the ambient block".into(),
+        Kind::Entry(Entry::Plenum { .. }) => "entry: given Tt, pt and mass flow".into(),
+        Kind::Entry(Entry::ChokedPlenum { .. }) => "entry: given Tt, pt; flow from a choked throat".into(),
+        Kind::Duct(Duct::Recovery { .. }) => "duct: pt recovery given".into(),
+        Kind::Duct(Duct::LossCoefficient { .. }) => "duct: loss coefficient on inlet q".into(),
+        Kind::Duct(Duct::MeasuredExit) => "duct: measured exit pt, recovery derived".into(),
+        Kind::Duct(Duct::Friction { .. }) => "duct: wall friction (Fanno)".into(),
+        Kind::Duct(Duct::IntakeSchedule) => "duct: intake recovery schedule from flight Mach".into(),
+        Kind::Combustor(c) => match c.mode {
+            Burn::ExitTemperature(_) => "combustor: exit Tt given, fuel derived".into(),
+            Burn::FuelFlow(_) => "combustor: fuel flow given, exit Tt derived".into(),
+            Burn::Measured(_) => "combustor: measured exit Tt, efficiency derived".into(),
+        },
+        Kind::Heating(Heating::Heat(_)) => "Rayleigh heating: heat given".into(),
+        Kind::Heating(Heating::ExitTemperature(_)) => "Rayleigh heating: exit Tt given".into(),
+        Kind::Compressor(c) => match c.mode {
+            Compression::Design { .. } => "compressor: pressure ratio and efficiency given".into(),
+            Compression::Measured => "compressor: measured exit, PR and efficiencies derived".into(),
+        },
+        Kind::Turbine(t) => match t.mode {
+            Expansion::Design { .. } => "turbine: expansion ratio and efficiency given".into(),
+            Expansion::ShaftWork { .. } => "turbine: work from the shaft balance".into(),
+            Expansion::Measured => "turbine: measured exit, efficiency derived".into(),
+        },
+        Kind::NormalShock => "normal shock".into(),
+        Kind::ObliqueShock(o) => format!("oblique shock ({:?} solution)", o.strength).to_lowercase(),
+        Kind::Nozzle(n) => format!(
+            "nozzle: {}, {}",
+            match n.shape {
+                Shape::Convergent => "convergent",
+                Shape::ConvergentDivergent => "convergent-divergent",
+            },
+            match n.exit {
+                Exit::Matched => "exit area derived",
+                Exit::Area(_) => "exit area given",
+            }
+        ),
+        Kind::Split(_) => "split by bypass ratio".into(),
+        Kind::Mixer(_) => "constant-area mixer".into(),
+    }
+}
+
+/// Status of the selected station for the status line.
+pub fn station_problem(app: &App) -> Option<String> {
+    let e = app.engine.as_ref()?;
+    match e.station_status(app.row) {
+        StationStatus::Ok(_) => None,
+        StationStatus::Failed(p) => e
+            .problems()
+            .into_iter()
+            .find(|x| x.place.ends_with(&format!("\"{p}\"")))
+            .map(|x| format!("{}: {}", x.place, x.message)),
+        StationStatus::Blocked(p) => Some(format!("not computed: blocked by the problem in \"{p}\"")),
+    }
+}
