@@ -16,8 +16,12 @@
 //! * [`table`]: flow tables (rows of relation values) for the command line.
 //! * [`report`]: tables of results and their text, CSV and JSON printers.
 //!
-//! `units`, `gas`, `flow` and `atmosphere` know nothing of files or
-//! terminals; front ends sit on top.
+//! * [`cli`] and [`tui`]: the two front ends (command line, terminal
+//!   workbook) over the engine; nothing below them imports clap, ratatui
+//!   or crossterm.
+//!
+//! `units`, `gas`, `flow`, `atmosphere`, `book` and `engine` know nothing of
+//! files or terminals; front ends sit on top.
 #![deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 #![cfg_attr(test, allow(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
 #![warn(missing_docs)]
@@ -33,4 +37,5 @@ pub mod present;
 pub mod report;
 pub mod table;
 pub mod templates;
+pub mod tui;
 pub mod units;

@@ -7,6 +7,14 @@ use crate::engine::{Engine, StationStatus};
 use crate::report::{Cell, Column, Table};
 use crate::units::{self, Quantity, UnitSystem};
 
+/// Join errors with "; ".
+pub fn join<E: std::fmt::Display>(v: &[E]) -> String {
+    v.iter()
+        .map(|e| e.to_string())
+        .collect::<Vec<_>>()
+        .join("; ")
+}
+
 /// Display unit of a quantity in a system (ratios and Mach get none).
 pub fn unit_of(q: Quantity, system: UnitSystem) -> &'static units::Unit {
     units::display_unit(q, system)

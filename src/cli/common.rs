@@ -16,11 +16,3 @@ pub fn open(path: &Path) -> Result<(Workbook, Engine), Failure> {
         .map_err(|e| Failure::bad(format!("{}: {}", path.display(), join(&e))))?;
     Ok((book, engine))
 }
-
-/// Join errors with "; ".
-pub fn join<E: std::fmt::Display>(v: &[E]) -> String {
-    v.iter()
-        .map(|e| e.to_string())
-        .collect::<Vec<_>>()
-        .join("; ")
-}

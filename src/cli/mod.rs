@@ -22,11 +22,25 @@ use std::process::ExitCode;
 ///
 /// Results are engineering estimates: they do not replace the facility's
 /// procedures, local codes or licensed engineering review.
+///
+/// Without a command, opens the terminal workbook: `stationwise FILE`, or
+/// `stationwise` alone for recent files and the demo templates.
 #[derive(Debug, Parser)]
-#[command(name = "stationwise", version, about, long_about = None)]
+#[command(name = "stationwise", version, about, long_about = None, args_conflicts_with_subcommands = true)]
 pub struct Cli {
     #[command(subcommand)]
-    command: Command,
+    command: Option<Command>,
+    /// Workbook to open in the terminal interface.
+    file: Option<std::path::PathBuf>,
+    /// Terminal: plain ASCII drawing (no box or braille characters).
+    #[arg(long)]
+    ascii: bool,
+    /// Terminal: no colour (NO_COLOR in the environment does the same).
+    #[arg(long)]
+    no_color: bool,
+    /// Terminal: start in US customary units.
+    #[arg(long)]
+    us: bool,
 }
 
 #[derive(Debug, Subcommand)]
@@ -120,7 +134,21 @@ pub(crate) fn print_table(t: &crate::report::Table, format: OutFormat) -> Result
 /// Parse arguments, run, map the outcome to an exit code.
 pub fn run() -> ExitCode {
     let cli = Cli::parse();
-    let result = match cli.command {
+    let Some(command) = cli.command else {
+        let opts = crate::tui::Options {
+            ascii: cli.ascii,
+            no_color: cli.no_color,
+            us: cli.us,
+        };
+        return match crate::tui::run(cli.file.as_deref(), opts) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => {
+                eprintln!("stationwise: {e}");
+                ExitCode::from(1)
+            }
+        };
+    };
+    let result = match command {
         Command::Table(a) => table::run(a),
         Command::Atmosphere(a) => atmosphere::run(a),
         Command::Eval(a) => eval::run(a),

@@ -77,6 +77,8 @@ pub struct Ctx<'a> {
     pub ambient: &'a AmbientState,
     /// Power a shaft-work turbine must deliver, W (set by the engine).
     pub shaft_need: Option<f64>,
+    /// Speed of the shaft the machine is on, rad/s, when given.
+    pub shaft_speed: Option<f64>,
 }
 
 type Res<T> = Result<T, String>;
@@ -919,8 +921,8 @@ fn heating(
     Ok(r)
 }
 
-fn stage_figures(st: &Stage, w: f64, i: &StationValue) -> Vec<(&'static str, f64)> {
-    vec![
+fn stage_figures(ctx: &Ctx, st: &Stage, w: f64, i: &StationValue) -> Vec<(&'static str, f64)> {
+    let mut v = vec![
         ("pressure_ratio", st.pressure_ratio),
         ("eta_isentropic", st.eta_isentropic),
         ("eta_polytropic", st.eta_polytropic),
@@ -929,7 +931,11 @@ fn stage_figures(st: &Stage, w: f64, i: &StationValue) -> Vec<(&'static str, f64
         ("tt_ratio", st.tt_out / i.tt),
         ("tt_ideal", st.tt_ideal),
         ("wc_in", crate::atmosphere::corrected_flow(i.w, i.tt, i.pt)),
-    ]
+    ];
+    if let Some(n) = ctx.shaft_speed {
+        v.push(("nc", crate::atmosphere::corrected_speed(n, i.tt)));
+    }
+    v
 }
 
 fn compressor(
@@ -1016,7 +1022,7 @@ fn compressor(
     let out = finish(&g, to, i.w, st.tt_out, pt, i.comp, None, "compressor", tr)?;
     let mut r = ProcessResult::new(out);
     r.power = st.work * i.w;
-    r.figures = stage_figures(&st, i.w, i);
+    r.figures = stage_figures(ctx, &st, i.w, i);
     Ok(r)
 }
 
@@ -1113,7 +1119,7 @@ fn turbine(
     let out = finish(&g, to, i.w, st.tt_out, pt, i.comp, None, "turbine", tr)?;
     let mut r = ProcessResult::new(out);
     r.power = -st.work * i.w;
-    r.figures = stage_figures(&st, i.w, i);
+    r.figures = stage_figures(ctx, &st, i.w, i);
     Ok(r)
 }
 

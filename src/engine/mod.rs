@@ -666,10 +666,14 @@ impl Engine {
         } else {
             None
         };
+        let shaft_speed = self.graph.shaft_of[i]
+            .and_then(|k| self.book.shafts[k].speed.as_ref())
+            .map(|g| g.si());
         let ctx = Ctx {
             model,
             ambient,
             shaft_need,
+            shaft_speed,
         };
         let to = &self.book.stations[self.graph.station_index[&p.to]];
         let to2 = match &p.kind {

@@ -4,8 +4,8 @@
 use super::keymap::{Command, Keymap, key_of};
 use super::settings::{self, Settings};
 use crate::book::{
-    Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given,
-    Heating, Kind, Nozzle, Oblique, Process, Shape, Station, Statics, Turbine, Workbook,
+    Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given, Heating,
+    Kind, Nozzle, Oblique, Process, Shape, Statics, Station, Turbine, Workbook,
 };
 use crate::engine::{Engine, StationStatus, sweep};
 use crate::flow::Branch;
@@ -336,8 +336,8 @@ impl App {
         self.sweep = None;
         settings::remember(path);
         self.info(format!("opened {}", path.display()));
-        if let Some(rp) = recovery_path(Some(path)) {
-            if rp.exists() {
+        if let Some(rp) = recovery_path(Some(path))
+            && rp.exists() {
                 self.popups.push(Popup::Confirm {
                     text: format!(
                         "A recovery file from an interrupted session exists ({}). Load it? y loads it (then save to keep it), n deletes it.",
@@ -346,7 +346,6 @@ impl App {
                     then: Pending::LoadRecovery(rp),
                 });
             }
-        }
         Ok(())
     }
 
@@ -361,7 +360,9 @@ impl App {
         self.undo.clear();
         self.redo.clear();
         self.row = 0;
-        self.info(format!("new workbook from the {name} demo (save with ctrl-s)"));
+        self.info(format!(
+            "new workbook from the {name} demo (save with ctrl-s)"
+        ));
         Ok(())
     }
 
@@ -656,7 +657,9 @@ impl App {
         self.modified = true;
         let problems = self.engine.as_ref().map_or(0, |e| e.problems().len());
         if problems > 0 {
-            self.error(format!("{path} = {text}: recomputed; {problems} problem(s), see the marked stations"));
+            self.error(format!(
+                "{path} = {text}: recomputed; {problems} problem(s), see the marked stations"
+            ));
         } else {
             self.info(format!("{path} = {text}: recomputed"));
         }
@@ -783,7 +786,9 @@ impl App {
             return;
         };
         let Some(pi) = b.processes.iter().position(|p| p.to == name) else {
-            self.error("this station is a split's second stream: delete or change the split instead");
+            self.error(
+                "this station is a split's second stream: delete or change the split instead",
+            );
             return;
         };
         let p = &b.processes[pi];
@@ -814,14 +819,16 @@ impl App {
             if q.from.as_deref() == Some(&name) {
                 q.from = Some(upstream.clone());
             }
-            if let Kind::Mixer(m) = &mut q.kind {
-                if m.secondary == name {
+            if let Kind::Mixer(m) = &mut q.kind
+                && m.secondary == name {
                     m.secondary = upstream.clone();
                 }
-            }
         }
         nb.results = None;
-        self.commit(nb, &format!("deleted station {name} and the process into it"));
+        self.commit(
+            nb,
+            &format!("deleted station {name} and the process into it"),
+        );
     }
 
     fn insert_station(&mut self, after: usize, name: &str) {
@@ -841,11 +848,10 @@ impl App {
             if q.from.as_deref() == Some(&sel) {
                 q.from = Some(name.to_string());
             }
-            if let Kind::Mixer(m) = &mut q.kind {
-                if m.secondary == sel {
+            if let Kind::Mixer(m) = &mut q.kind
+                && m.secondary == sel {
                     m.secondary = name.to_string();
                 }
-            }
         }
         let mut pname = format!("duct {name}");
         while nb.processes.iter().any(|p| p.name == pname) {
@@ -874,7 +880,10 @@ impl App {
             return;
         }
         nb.results = None;
-        self.commit(nb, &format!("inserted station {name} with a loss-free duct into it"));
+        self.commit(
+            nb,
+            &format!("inserted station {name} with a loss-free duct into it"),
+        );
         self.row = (after + 1).min(self.n_stations().saturating_sub(1));
     }
 
@@ -940,7 +949,12 @@ impl App {
             return;
         };
         let new = new.trim();
-        if new.is_empty() || b.processes.iter().enumerate().any(|(j, p)| j != i && p.name == new) {
+        if new.is_empty()
+            || b.processes
+                .iter()
+                .enumerate()
+                .any(|(j, p)| j != i && p.name == new)
+        {
             self.error(format!("process name \"{new}\" is empty or already used"));
             return;
         }
@@ -968,7 +982,9 @@ impl App {
         let st = &mut nb.stations[self.row];
         let f = v.and_then(|v| v.flow);
         let next = match &st.statics {
-            None => Some(Statics::Mach(Given::raw(&fmt_num(f.map_or(0.5, |f| f.mach))))),
+            None => Some(Statics::Mach(Given::raw(&fmt_num(
+                f.map_or(0.5, |f| f.mach),
+            )))),
             Some(Statics::Mach(_)) => Some(Statics::Pressure(Given::raw(&format!(
                 "{} kPa",
                 fmt_num(f.map_or(100.0, |f| f.p / 1000.0))
@@ -1002,7 +1018,11 @@ impl App {
             Some(Branch::Supersonic) => None,
             _ => Some(Branch::Supersonic),
         };
-        let what = if st.branch.is_some() { "supersonic branch" } else { "subsonic branch" };
+        let what = if st.branch.is_some() {
+            "supersonic branch"
+        } else {
+            "subsonic branch"
+        };
         self.commit(nb, what);
     }
 
@@ -1080,13 +1100,21 @@ impl App {
         let (from, to) = cur.map_or((String::new(), String::new()), |(_, q, _, si)| {
             let u = crate::present::unit_of(*q, self.system);
             let v = units::from_si(*si, u);
-            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) { "" } else { u.symbol };
+            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
+                ""
+            } else {
+                u.symbol
+            };
             (
                 format!("{} {sym}", fmt_num(v * 0.8)).trim().to_string(),
                 format!("{} {sym}", fmt_num(v * 1.2)).trim().to_string(),
             )
         });
-        let report = if self.engine.as_ref().is_some_and(|e| e.summary().thrust_net.is_some()) {
+        let report = if self
+            .engine
+            .as_ref()
+            .is_some_and(|e| e.summary().thrust_net.is_some())
+        {
             "summary.thrust_net, summary.tsfc".to_string()
         } else {
             let last = b.stations.last().map_or(String::new(), |s| s.name.clone());
@@ -1107,9 +1135,16 @@ impl App {
             .into_iter()
             .find(|(p, ..)| *p == vary)
             .ok_or(format!("no given at \"{vary}\""))?;
-        let from = units::parse(&fields[1], q, "from").map_err(|e| e.to_string())?.si;
-        let to = units::parse(&fields[2], q, "to").map_err(|e| e.to_string())?.si;
-        let steps: usize = fields[3].trim().parse().map_err(|_| "steps: a whole number".to_string())?;
+        let from = units::parse(&fields[1], q, "from")
+            .map_err(|e| e.to_string())?
+            .si;
+        let to = units::parse(&fields[2], q, "to")
+            .map_err(|e| e.to_string())?
+            .si;
+        let steps: usize = fields[3]
+            .trim()
+            .parse()
+            .map_err(|_| "steps: a whole number".to_string())?;
         if !(1..=2000).contains(&steps) {
             return Err("steps: 1 to 2000 in the terminal (use the sweep command for more)".into());
         }
@@ -1121,7 +1156,8 @@ impl App {
         if report.is_empty() {
             return Err("report: at least one derived value path".into());
         }
-        let rows = sweep::run(e, &vary, &sweep::linspace(from, to, steps), &report).map_err(|e| e.to_string())?;
+        let rows = sweep::run(e, &vary, &sweep::linspace(from, to, steps), &report)
+            .map_err(|e| e.to_string())?;
         self.sweep = Some(SweepData { vary, report, rows });
         Ok(())
     }
@@ -1134,10 +1170,18 @@ impl App {
         let ctrl = ev.modifiers.contains(KeyModifiers::CONTROL);
         match top {
             Popup::Help { scroll } => match code {
-                KeyCode::Down | KeyCode::Char('j') => self.popups.push(Popup::Help { scroll: scroll + 1 }),
-                KeyCode::Up | KeyCode::Char('k') => self.popups.push(Popup::Help { scroll: scroll.saturating_sub(1) }),
-                KeyCode::PageDown => self.popups.push(Popup::Help { scroll: scroll + 10 }),
-                KeyCode::PageUp => self.popups.push(Popup::Help { scroll: scroll.saturating_sub(10) }),
+                KeyCode::Down | KeyCode::Char('j') => {
+                    self.popups.push(Popup::Help { scroll: scroll + 1 })
+                }
+                KeyCode::Up | KeyCode::Char('k') => self.popups.push(Popup::Help {
+                    scroll: scroll.saturating_sub(1),
+                }),
+                KeyCode::PageDown => self.popups.push(Popup::Help {
+                    scroll: scroll + 10,
+                }),
+                KeyCode::PageUp => self.popups.push(Popup::Help {
+                    scroll: scroll.saturating_sub(10),
+                }),
                 _ => {}
             },
             Popup::Confirm { text, then } => match code {
@@ -1151,42 +1195,87 @@ impl App {
                 KeyCode::Esc => {}
                 _ => self.popups.push(Popup::Confirm { text, then }),
             },
-            Popup::Edit { path, quantity, mut input } => match code {
+            Popup::Edit {
+                path,
+                quantity,
+                mut input,
+            } => match code {
                 KeyCode::Esc => self.info("edit cancelled"),
                 KeyCode::Enter => {
                     if let Err(e) = self.apply_edit(&path, &input) {
                         self.error(format!("{e} (old value kept)"));
-                        self.popups.push(Popup::Edit { path, quantity, input });
+                        self.popups.push(Popup::Edit {
+                            path,
+                            quantity,
+                            input,
+                        });
                     }
                 }
                 KeyCode::Backspace => {
                     input.pop();
-                    self.popups.push(Popup::Edit { path, quantity, input });
+                    self.popups.push(Popup::Edit {
+                        path,
+                        quantity,
+                        input,
+                    });
                 }
                 KeyCode::Char('u') if ctrl => {
                     input.clear();
-                    self.popups.push(Popup::Edit { path, quantity, input });
+                    self.popups.push(Popup::Edit {
+                        path,
+                        quantity,
+                        input,
+                    });
                 }
                 KeyCode::Char(c) if !ctrl => {
                     input.push(c);
-                    self.popups.push(Popup::Edit { path, quantity, input });
+                    self.popups.push(Popup::Edit {
+                        path,
+                        quantity,
+                        input,
+                    });
                 }
-                _ => self.popups.push(Popup::Edit { path, quantity, input }),
+                _ => self.popups.push(Popup::Edit {
+                    path,
+                    quantity,
+                    input,
+                }),
             },
-            Popup::Text { title, mut input, purpose } => match code {
+            Popup::Text {
+                title,
+                mut input,
+                purpose,
+            } => match code {
                 KeyCode::Esc => {}
                 KeyCode::Enter => self.text_done(purpose, &input),
                 KeyCode::Backspace => {
                     input.pop();
-                    self.popups.push(Popup::Text { title, input, purpose });
+                    self.popups.push(Popup::Text {
+                        title,
+                        input,
+                        purpose,
+                    });
                 }
                 KeyCode::Char(c) if !ctrl => {
                     input.push(c);
-                    self.popups.push(Popup::Text { title, input, purpose });
+                    self.popups.push(Popup::Text {
+                        title,
+                        input,
+                        purpose,
+                    });
                 }
-                _ => self.popups.push(Popup::Text { title, input, purpose }),
+                _ => self.popups.push(Popup::Text {
+                    title,
+                    input,
+                    purpose,
+                }),
             },
-            Popup::Choose { title, items, mut sel, purpose } => match code {
+            Popup::Choose {
+                title,
+                items,
+                mut sel,
+                purpose,
+            } => match code {
                 KeyCode::Esc => {
                     if matches!(purpose, ChooseFor::Start(_)) && self.engine.is_none() {
                         self.quit = true;
@@ -1195,11 +1284,21 @@ impl App {
                 KeyCode::Char('q') if matches!(purpose, ChooseFor::Start(_)) => self.quit = true,
                 KeyCode::Up | KeyCode::Char('k') => {
                     sel = sel.saturating_sub(1);
-                    self.popups.push(Popup::Choose { title, items, sel, purpose });
+                    self.popups.push(Popup::Choose {
+                        title,
+                        items,
+                        sel,
+                        purpose,
+                    });
                 }
                 KeyCode::Down | KeyCode::Char('j') => {
                     sel = (sel + 1).min(items.len().saturating_sub(1));
-                    self.popups.push(Popup::Choose { title, items, sel, purpose });
+                    self.popups.push(Popup::Choose {
+                        title,
+                        items,
+                        sel,
+                        purpose,
+                    });
                 }
                 KeyCode::Enter => match purpose {
                     ChooseFor::Kind => self.set_kind(sel),
@@ -1211,11 +1310,21 @@ impl App {
                         };
                         if let Err(e) = r {
                             self.error(e);
-                            self.popups.push(Popup::Choose { title, items, sel, purpose: ChooseFor::Start(list) });
+                            self.popups.push(Popup::Choose {
+                                title,
+                                items,
+                                sel,
+                                purpose: ChooseFor::Start(list),
+                            });
                         }
                     }
                 },
-                _ => self.popups.push(Popup::Choose { title, items, sel, purpose }),
+                _ => self.popups.push(Popup::Choose {
+                    title,
+                    items,
+                    sel,
+                    purpose,
+                }),
             },
             Popup::Setup { mut sel } => {
                 let rows = self.setup_rows();
@@ -1233,8 +1342,15 @@ impl App {
                         self.popups.push(Popup::Setup { sel });
                         match rows.get(sel) {
                             Some(SetupRow::Given(p)) => {
-                                if let Some((_, q, t, _)) = self.book().and_then(|b| b.givens().into_iter().find(|(g, ..)| g == p)) {
-                                    self.popups.push(Popup::Edit { path: p.clone(), quantity: q, input: t });
+                                if let Some((_, q, t, _)) = self
+                                    .book()
+                                    .and_then(|b| b.givens().into_iter().find(|(g, ..)| g == p))
+                                {
+                                    self.popups.push(Popup::Edit {
+                                        path: p.clone(),
+                                        quantity: q,
+                                        input: t,
+                                    });
                                 }
                             }
                             Some(r) => self.toggle_setup(r.clone()),
@@ -1244,7 +1360,10 @@ impl App {
                     _ => self.popups.push(Popup::Setup { sel }),
                 }
             }
-            Popup::SweepForm { mut fields, mut sel } => match code {
+            Popup::SweepForm {
+                mut fields,
+                mut sel,
+            } => match code {
                 KeyCode::Esc => {
                     if self.sweep.is_none() {
                         self.view = View::Grid;
@@ -1286,9 +1405,15 @@ impl App {
             Pending::SaveOver => self.save(true),
             Pending::OpenOther => self.ask_open(),
             Pending::LoadRecovery(p) => {
-                match std::fs::read_to_string(&p).map_err(|e| e.to_string()).and_then(|t| format::parse(&t).map_err(|e| e.to_string())) {
+                match std::fs::read_to_string(&p)
+                    .map_err(|e| e.to_string())
+                    .and_then(|t| format::parse(&t).map_err(|e| e.to_string()))
+                {
                     Ok(book) => {
-                        self.commit(book, "recovered the interrupted session's changes (save to keep them)");
+                        self.commit(
+                            book,
+                            "recovered the interrupted session's changes (save to keep them)",
+                        );
                         let _ = std::fs::remove_file(&p);
                     }
                     Err(e) => self.error(format!("recovery file unreadable: {e}")),
@@ -1324,7 +1449,10 @@ impl App {
         let mut rows = vec![SetupRow::Condition];
         if let Some(b) = self.book() {
             for (p, ..) in b.givens() {
-                if p.starts_with("ambient.") && p != "ambient.flight_mach" && p != "ambient.flight_speed" {
+                if p.starts_with("ambient.")
+                    && p != "ambient.flight_mach"
+                    && p != "ambient.flight_speed"
+                {
                     rows.push(SetupRow::Given(p));
                 }
             }
@@ -1394,7 +1522,11 @@ impl App {
             }
             SetupRow::KeepResults => {
                 nb.keep_results = !nb.keep_results;
-                if nb.keep_results { "results will be stored in the file on save" } else { "results will not be stored" }
+                if nb.keep_results {
+                    "results will be stored in the file on save"
+                } else {
+                    "results will not be stored"
+                }
             }
             SetupRow::Given(_) => return,
         };
@@ -1438,8 +1570,15 @@ fn statics_name(s: &Statics) -> &'static str {
 
 /// Kinds offered by the kind chooser.
 pub const KIND_NAMES: [&str; 9] = [
-    "duct", "combustor", "Rayleigh heating", "compressor", "turbine", "normal shock",
-    "oblique shock", "nozzle", "entry (plenum)",
+    "duct",
+    "combustor",
+    "Rayleigh heating",
+    "compressor",
+    "turbine",
+    "normal shock",
+    "oblique shock",
+    "nozzle",
+    "entry (plenum)",
 ];
 
 fn g(s: &str) -> Given {
@@ -1448,7 +1587,9 @@ fn g(s: &str) -> Given {
 
 fn default_kind(i: usize) -> Option<Kind> {
     Some(match i {
-        0 => Kind::Duct(Duct::Recovery { recovery: g("0.98") }),
+        0 => Kind::Duct(Duct::Recovery {
+            recovery: g("0.98"),
+        }),
         1 => Kind::Combustor(Combustor {
             mode: Burn::ExitTemperature(g("1400 K")),
             pressure_loss: g("4 %"),
@@ -1506,7 +1647,9 @@ pub fn next_mode(k: &Kind) -> Option<Kind> {
             pt: pt.clone(),
             throat_area: g("0.01 m2"),
         }),
-        Kind::Entry(Entry::ChokedPlenum { .. }) => Kind::Entry(Entry::Freestream { w: g("10 kg/s") }),
+        Kind::Entry(Entry::ChokedPlenum { .. }) => {
+            Kind::Entry(Entry::Freestream { w: g("10 kg/s") })
+        }
         Kind::Duct(d) => Kind::Duct(match d {
             Duct::Recovery { .. } => Duct::LossCoefficient { k: g("0.5") },
             Duct::LossCoefficient { .. } => Duct::MeasuredExit,
@@ -1516,7 +1659,9 @@ pub fn next_mode(k: &Kind) -> Option<Kind> {
                 friction: g("0.005"),
             },
             Duct::Friction { .. } => Duct::IntakeSchedule,
-            Duct::IntakeSchedule => Duct::Recovery { recovery: g("0.98") },
+            Duct::IntakeSchedule => Duct::Recovery {
+                recovery: g("0.98"),
+            },
         }),
         Kind::Combustor(c) => {
             let mut c = c.clone();
@@ -1542,7 +1687,9 @@ pub fn next_mode(k: &Kind) -> Option<Kind> {
         }),
         Kind::Turbine(t) => Kind::Turbine(Turbine {
             mode: match &t.mode {
-                Expansion::Design { efficiency, basis, .. } => Expansion::ShaftWork {
+                Expansion::Design {
+                    efficiency, basis, ..
+                } => Expansion::ShaftWork {
                     efficiency: efficiency.clone(),
                     basis: *basis,
                 },
@@ -1565,11 +1712,20 @@ pub fn next_mode(k: &Kind) -> Option<Kind> {
         Kind::Nozzle(n) => {
             let (shape, exit) = match (&n.shape, &n.exit) {
                 (Shape::Convergent, Exit::Matched) => (Shape::Convergent, Exit::Area(g("0.05 m2"))),
-                (Shape::Convergent, Exit::Area(a)) => (Shape::ConvergentDivergent, Exit::Area(a.clone())),
-                (Shape::ConvergentDivergent, Exit::Area(_)) => (Shape::ConvergentDivergent, Exit::Matched),
+                (Shape::Convergent, Exit::Area(a)) => {
+                    (Shape::ConvergentDivergent, Exit::Area(a.clone()))
+                }
+                (Shape::ConvergentDivergent, Exit::Area(_)) => {
+                    (Shape::ConvergentDivergent, Exit::Matched)
+                }
                 (Shape::ConvergentDivergent, Exit::Matched) => (Shape::Convergent, Exit::Matched),
             };
-            Kind::Nozzle(Nozzle { shape, exit, cv: n.cv.clone(), cd: n.cd.clone() })
+            Kind::Nozzle(Nozzle {
+                shape,
+                exit,
+                cv: n.cv.clone(),
+                cd: n.cd.clone(),
+            })
         }
         Kind::NormalShock | Kind::Split(_) | Kind::Mixer(_) => return None,
     })
@@ -1580,12 +1736,16 @@ pub fn mode_label(k: &Kind) -> String {
     match k {
         Kind::Entry(Entry::Freestream { .. }) => "entry: free stream from the ambient block".into(),
         Kind::Entry(Entry::Plenum { .. }) => "entry: given Tt, pt and mass flow".into(),
-        Kind::Entry(Entry::ChokedPlenum { .. }) => "entry: given Tt, pt; flow from a choked throat".into(),
+        Kind::Entry(Entry::ChokedPlenum { .. }) => {
+            "entry: given Tt, pt; flow from a choked throat".into()
+        }
         Kind::Duct(Duct::Recovery { .. }) => "duct: pt recovery given".into(),
         Kind::Duct(Duct::LossCoefficient { .. }) => "duct: loss coefficient on inlet q".into(),
         Kind::Duct(Duct::MeasuredExit) => "duct: measured exit pt, recovery derived".into(),
         Kind::Duct(Duct::Friction { .. }) => "duct: wall friction (Fanno)".into(),
-        Kind::Duct(Duct::IntakeSchedule) => "duct: intake recovery schedule from flight Mach".into(),
+        Kind::Duct(Duct::IntakeSchedule) => {
+            "duct: intake recovery schedule from flight Mach".into()
+        }
         Kind::Combustor(c) => match c.mode {
             Burn::ExitTemperature(_) => "combustor: exit Tt given, fuel derived".into(),
             Burn::FuelFlow(_) => "combustor: fuel flow given, exit Tt derived".into(),
@@ -1595,7 +1755,9 @@ pub fn mode_label(k: &Kind) -> String {
         Kind::Heating(Heating::ExitTemperature(_)) => "Rayleigh heating: exit Tt given".into(),
         Kind::Compressor(c) => match c.mode {
             Compression::Design { .. } => "compressor: pressure ratio and efficiency given".into(),
-            Compression::Measured => "compressor: measured exit, PR and efficiencies derived".into(),
+            Compression::Measured => {
+                "compressor: measured exit, PR and efficiencies derived".into()
+            }
         },
         Kind::Turbine(t) => match t.mode {
             Expansion::Design { .. } => "turbine: expansion ratio and efficiency given".into(),
@@ -1603,7 +1765,9 @@ pub fn mode_label(k: &Kind) -> String {
             Expansion::Measured => "turbine: measured exit, efficiency derived".into(),
         },
         Kind::NormalShock => "normal shock".into(),
-        Kind::ObliqueShock(o) => format!("oblique shock ({:?} solution)", o.strength).to_lowercase(),
+        Kind::ObliqueShock(o) => {
+            format!("oblique shock ({:?} solution)", o.strength).to_lowercase()
+        }
         Kind::Nozzle(n) => format!(
             "nozzle: {}, {}",
             match n.shape {
@@ -1630,6 +1794,8 @@ pub fn station_problem(app: &App) -> Option<String> {
             .into_iter()
             .find(|x| x.place.ends_with(&format!("\"{p}\"")))
             .map(|x| format!("{}: {}", x.place, x.message)),
-        StationStatus::Blocked(p) => Some(format!("not computed: blocked by the problem in \"{p}\"")),
+        StationStatus::Blocked(p) => {
+            Some(format!("not computed: blocked by the problem in \"{p}\""))
+        }
     }
 }

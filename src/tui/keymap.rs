@@ -64,31 +64,126 @@ pub enum Command {
 
 /// The command table: name, description, default keys.
 pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
-    (Command::Up, "up", "move up (previous station in the walk)", &["Up", "k"]),
-    (Command::Down, "down", "move down (next station in the walk)", &["Down", "j"]),
+    (
+        Command::Up,
+        "up",
+        "move up (previous station in the walk)",
+        &["Up", "k"],
+    ),
+    (
+        Command::Down,
+        "down",
+        "move down (next station in the walk)",
+        &["Down", "j"],
+    ),
     (Command::Left, "left", "previous column", &["Left", "h"]),
     (Command::Right, "right", "next column", &["Right", "l"]),
-    (Command::Edit, "edit-value", "edit the selected given (type a value, with or without unit)", &["Enter", "e"]),
-    (Command::Focus, "switch-focus", "switch between station grid and process panel", &["Tab"]),
-    (Command::ViewGrid, "show-grid", "station grid with process panel and summary", &["1"]),
-    (Command::ViewWalk, "show-walk", "walk the flow path station by station with explanations", &["2"]),
-    (Command::ViewChart, "show-ts-chart", "total temperature versus entropy chart", &["3"]),
-    (Command::ViewSweep, "show-sweep", "sweep a given and plot derived values", &["4"]),
-    (Command::Units, "toggle-units", "SI or US customary display", &["u"]),
-    (Command::Columns, "next-columns", "grid columns: totals, statics, flow, all", &["c"]),
-    (Command::Undo, "undo", "undo the last change", &["ctrl-z", "z"]),
+    (
+        Command::Edit,
+        "edit-value",
+        "edit the selected given (type a value, with or without unit)",
+        &["Enter", "e"],
+    ),
+    (
+        Command::Focus,
+        "switch-focus",
+        "switch between station grid and process panel",
+        &["Tab"],
+    ),
+    (
+        Command::ViewGrid,
+        "show-grid",
+        "station grid with process panel and summary",
+        &["1"],
+    ),
+    (
+        Command::ViewWalk,
+        "show-walk",
+        "walk the flow path station by station with explanations",
+        &["2"],
+    ),
+    (
+        Command::ViewChart,
+        "show-ts-chart",
+        "total temperature versus entropy chart",
+        &["3"],
+    ),
+    (
+        Command::ViewSweep,
+        "show-sweep",
+        "sweep a given and plot derived values",
+        &["4"],
+    ),
+    (
+        Command::Units,
+        "toggle-units",
+        "SI or US customary display",
+        &["u"],
+    ),
+    (
+        Command::Columns,
+        "next-columns",
+        "grid columns: totals, statics, flow, all",
+        &["c"],
+    ),
+    (
+        Command::Undo,
+        "undo",
+        "undo the last change",
+        &["ctrl-z", "z"],
+    ),
     (Command::Redo, "redo", "redo", &["ctrl-y", "Z"]),
-    (Command::Save, "save", "save the workbook (atomic write)", &["ctrl-s"]),
+    (
+        Command::Save,
+        "save",
+        "save the workbook (atomic write)",
+        &["ctrl-s"],
+    ),
     (Command::SaveAs, "save-as", "save under a new name", &["S"]),
     (Command::Open, "open-file", "open another workbook", &["o"]),
-    (Command::Insert, "insert-station", "insert a station and a duct into it after the selection", &["a"]),
-    (Command::Delete, "delete-station", "delete the selected station and the process into it", &["x"]),
-    (Command::Rename, "rename", "rename the selected station, or the process when in the panel", &["r"]),
-    (Command::Kind, "change-kind", "change the kind of the process into the selected station", &["K"]),
-    (Command::Mode, "change-mode", "cycle the mode of the process (what is given, what is derived)", &["m"]),
-    (Command::Setup, "open-setup", "ambient block and gas model", &["g"]),
+    (
+        Command::Insert,
+        "insert-station",
+        "insert a station and a duct into it after the selection",
+        &["a"],
+    ),
+    (
+        Command::Delete,
+        "delete-station",
+        "delete the selected station and the process into it",
+        &["x"],
+    ),
+    (
+        Command::Rename,
+        "rename",
+        "rename the selected station, or the process when in the panel",
+        &["r"],
+    ),
+    (
+        Command::Kind,
+        "change-kind",
+        "change the kind of the process into the selected station",
+        &["K"],
+    ),
+    (
+        Command::Mode,
+        "change-mode",
+        "cycle the mode of the process (what is given, what is derived)",
+        &["m"],
+    ),
+    (
+        Command::Setup,
+        "open-setup",
+        "ambient block and gas model",
+        &["g"],
+    ),
     (Command::Help, "help", "this help", &["?", "F1"]),
-    (Command::Quit, "quit", "quit (asks first when there are unsaved changes)", &["q", "ctrl-q"]),
+    (
+        Command::Quit,
+        "quit",
+        "quit (asks first when there are unsaved changes)",
+        &["q", "ctrl-q"],
+    ),
 ];
 
 /// A key as written in the table and in settings ("ctrl-s", "Enter", "K").
@@ -225,7 +320,10 @@ mod tests {
             ("nope".into(), "quit".into()),
             ("q".into(), "no-such-command".into()),
         ]);
-        assert_eq!(km.command(parse_key("ctrl-g").unwrap()), Some(Command::Setup));
+        assert_eq!(
+            km.command(parse_key("ctrl-g").unwrap()),
+            Some(Command::Setup)
+        );
         assert_eq!(bad.len(), 2);
     }
 

@@ -1,0 +1,167 @@
+//! The terminal workbook: set-up and restore, the event loop, signals.
+//!
+//! Shape: key -> keymap -> command -> `App` update (through the engine) ->
+//! views draw from `&App`. The loop redraws only after input or a resize
+//! and otherwise sleeps in `poll`, so an idle session costs nothing on an
+//! SSH link. The terminal is restored on quit, on error, on a panic (hook)
+//! and on SIGTERM or SIGHUP; on a dropped session unsaved changes go to a
+//! recovery file beside the workbook, offered at the next open.
+
+pub mod app;
+pub mod keymap;
+pub mod plot;
+pub mod settings;
+pub mod ui;
+
+use app::App;
+use crossterm::event::{self, Event, KeyEventKind};
+use crossterm::execute;
+use crossterm::terminal::{self, EnterAlternateScreen, LeaveAlternateScreen};
+use ratatui::Terminal;
+use ratatui::backend::CrosstermBackend;
+use std::io;
+use std::path::Path;
+use std::sync::atomic::{AtomicI32, Ordering};
+use std::time::Duration;
+
+static SIGNAL: AtomicI32 = AtomicI32::new(0);
+
+extern "C" fn on_signal(sig: libc::c_int) {
+    SIGNAL.store(sig, Ordering::SeqCst);
+}
+
+fn install_signals() {
+    #[cfg(unix)]
+    // SAFETY: the handler only stores to an atomic, which is
+    // async-signal-safe; the function pointer has the C signature required.
+    unsafe {
+        let h = on_signal as extern "C" fn(libc::c_int) as libc::sighandler_t;
+        libc::signal(libc::SIGHUP, h);
+        libc::signal(libc::SIGTERM, h);
+    }
+}
+
+fn restore() {
+    let _ = terminal::disable_raw_mode();
+    let _ = execute!(io::stdout(), LeaveAlternateScreen, crossterm::cursor::Show);
+}
+
+/// Options from the command line.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Options {
+    /// Force ASCII drawing.
+    pub ascii: bool,
+    /// Force colour off.
+    pub no_color: bool,
+    /// Start in US units.
+    pub us: bool,
+}
+
+/// Run the terminal workbook on a file (or the start screen).
+pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
+    let (mut s, note) = settings::load();
+    if opts.ascii {
+        s.ascii = true;
+    }
+    if opts.no_color {
+        s.color = false;
+    }
+    if opts.us {
+        s.us_units = true;
+    }
+    let mut app = App::new(s);
+    if let Some(n) = note {
+        app.status = Some((n, true));
+    }
+    match file {
+        Some(f) => app.open(f)?,
+        None => app.start_screen(),
+    }
+    install_signals();
+    let prev = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        restore();
+        prev(info);
+    }));
+    terminal::enable_raw_mode().map_err(|e| format!("cannot use this terminal: {e}"))?;
+    if let Err(e) = execute!(io::stdout(), EnterAlternateScreen) {
+        restore();
+        return Err(format!("cannot use this terminal: {e}"));
+    }
+    let result = event_loop(&mut app);
+    restore();
+    if let Some(sig) = result
+        .as_ref()
+        .err()
+        .and_then(|e| e.strip_prefix("signal "))
+    {
+        let _ = sig;
+    }
+    match result {
+        Ok(()) => Ok(()),
+        Err(e) => Err(e),
+    }
+}
+
+fn on_cut(app: &App, why: &str) -> String {
+    match app.write_recovery() {
+        Some(p) => format!("{why}: unsaved changes written to {}", p.display()),
+        None => format!("{why}: nothing unsaved"),
+    }
+}
+
+fn event_loop(app: &mut App) -> Result<(), String> {
+    let backend = CrosstermBackend::new(io::stdout());
+    let mut term = Terminal::new(backend).map_err(|e| e.to_string())?;
+    let _ = term.clear();
+    let mut redraw = true;
+    loop {
+        let sig = SIGNAL.load(Ordering::SeqCst);
+        if sig != 0 {
+            let m = on_cut(
+                app,
+                if sig == libc::SIGHUP {
+                    "session hung up"
+                } else {
+                    "terminated"
+                },
+            );
+            return Err(m);
+        }
+        if app.quit {
+            return Ok(());
+        }
+        if redraw {
+            if let Err(e) = term.draw(|f| ui::draw(f, app)) {
+                return Err(on_cut(app, &format!("terminal lost ({e})")));
+            }
+            redraw = false;
+        }
+        match event::poll(Duration::from_millis(400)) {
+            Ok(true) => match event::read() {
+                Ok(Event::Key(k)) if k.kind == KeyEventKind::Press => {
+                    app.on_key(k);
+                    redraw = true;
+                }
+                Ok(Event::Resize(_, _)) => {
+                    let _ = term.autoresize();
+                    redraw = true;
+                }
+                Ok(_) => {}
+                Err(e) => {
+                    if SIGNAL.load(Ordering::SeqCst) != 0 {
+                        continue;
+                    }
+                    return Err(on_cut(app, &format!("terminal input lost ({e})")));
+                }
+            },
+            Ok(false) => {}
+            Err(e) => {
+                if SIGNAL.load(Ordering::SeqCst) != 0 {
+                    continue;
+                }
+                return Err(on_cut(app, &format!("terminal input lost ({e})")));
+            }
+        }
+    }
+}

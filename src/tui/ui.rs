@@ -1,0 +1,844 @@
+//! Drawing: every view and popup from `&App`. Nothing here changes state.
+//!
+//! Given values carry a `=` before the number and a bold attribute;
+//! values that could not be computed show `!!` (own process failed) or
+//! `..` (blocked upstream); undefined ones show `-`. The selection has a `>`
+//! marker as well as reverse video, so none of this relies on colour.
+
+use super::app::{App, Focus, PanelRow, Popup, SetupRow, View, mode_label, station_problem};
+use super::keymap::COMMANDS;
+use super::plot::{self, Series};
+use crate::book::paths::STATION_KEYS;
+use crate::engine::StationStatus;
+use crate::present::{self, figure_meta, summary_entries, unit_label, with_unit};
+use crate::units::{self, Quantity};
+use ratatui::Frame;
+use ratatui::layout::{Constraint, Layout, Rect};
+use ratatui::style::{Color, Modifier, Style};
+use ratatui::symbols::border;
+use ratatui::text::{Line, Span};
+use ratatui::widgets::{Block, Borders, Clear, Paragraph, Wrap};
+
+/// Smallest usable terminal.
+pub const MIN_SIZE: (u16, u16) = (64, 18);
+
+/// The caution shown in help (and the README).
+pub const CAUTION: &str = "Results are engineering estimates. They do not replace the facility's procedures, local codes or licensed engineering review; pressure, fuel, hot gas and rotating machinery can hurt people.";
+
+const ASCII_BORDER: border::Set = border::Set {
+    top_left: "+",
+    top_right: "+",
+    bottom_left: "+",
+    bottom_right: "+",
+    vertical_left: "|",
+    vertical_right: "|",
+    horizontal_top: "-",
+    horizontal_bottom: "-",
+};
+
+struct Theme {
+    ascii: bool,
+    color: bool,
+}
+
+impl Theme {
+    fn block<'a>(&self, title: impl Into<Line<'a>>) -> Block<'a> {
+        let b = Block::default().borders(Borders::ALL).title(title);
+        if self.ascii {
+            b.border_set(ASCII_BORDER)
+        } else {
+            b.border_set(border::PLAIN)
+        }
+    }
+    fn given(&self) -> Style {
+        let s = Style::default().add_modifier(Modifier::BOLD);
+        if self.color { s.fg(Color::Cyan) } else { s }
+    }
+    fn bad(&self) -> Style {
+        if self.color {
+            Style::default().fg(Color::Red)
+        } else {
+            Style::default().add_modifier(Modifier::BOLD)
+        }
+    }
+    fn dim(&self) -> Style {
+        if self.color {
+            Style::default().fg(Color::DarkGray)
+        } else {
+            Style::default()
+        }
+    }
+    fn sel(&self) -> Style {
+        Style::default().add_modifier(Modifier::REVERSED)
+    }
+}
+
+/// Draw the whole screen.
+pub fn draw(f: &mut Frame, app: &App) {
+    let area = f.area();
+    let th = Theme {
+        ascii: app.settings.ascii,
+        color: app.settings.color,
+    };
+    if area.width < MIN_SIZE.0 || area.height < MIN_SIZE.1 {
+        let msg = format!(
+            "The terminal is {}x{}; stationwise needs at least {}x{}. Enlarge it (q quits).",
+            area.width, area.height, MIN_SIZE.0, MIN_SIZE.1
+        );
+        f.render_widget(Paragraph::new(msg).wrap(Wrap { trim: true }), area);
+        return;
+    }
+    let [top, body, status] = Layout::vertical([
+        Constraint::Length(1),
+        Constraint::Min(5),
+        Constraint::Length(1),
+    ])
+    .areas(area);
+    f.render_widget(Paragraph::new(title_line(app)), top);
+    if app.engine.is_some() {
+        match app.view {
+            View::Grid => grid_view(f, app, &th, body),
+            View::Walk => walk_view(f, app, &th, body),
+            View::Chart => chart_view(f, app, &th, body),
+            View::Sweep => sweep_view(f, app, &th, body),
+        }
+    }
+    let (msg, err) = match (&app.status, station_problem(app)) {
+        (Some((m, e)), _) => (m.clone(), *e),
+        (None, Some(p)) => (p, true),
+        (None, None) => (
+            "? help  q quit  Tab panel  Enter edit  1-4 views".to_string(),
+            false,
+        ),
+    };
+    let style = if err { th.bad() } else { Style::default() };
+    f.render_widget(Paragraph::new(Span::styled(msg, style)), status);
+    for p in &app.popups {
+        popup(f, app, &th, p, body);
+    }
+}
+
+fn title_line(app: &App) -> Line<'static> {
+    let name = app
+        .path
+        .as_ref()
+        .and_then(|p| p.file_name())
+        .map_or("(untitled)".to_string(), |n| {
+            n.to_string_lossy().to_string()
+        });
+    let star = if app.modified { " *" } else { "" };
+    let view = match app.view {
+        View::Grid => "grid",
+        View::Walk => "walk",
+        View::Chart => "T-s",
+        View::Sweep => "sweep",
+    };
+    let units = match app.system {
+        units::UnitSystem::Si => "SI",
+        units::UnitSystem::Us => "US",
+    };
+    Line::from(vec![
+        Span::styled(
+            " stationwise ",
+            Style::default().add_modifier(Modifier::REVERSED),
+        ),
+        Span::raw(format!(
+            " {name}{star}  view:{view}  {units}  cols:{}  ? help",
+            app.columns.name()
+        )),
+    ])
+}
+
+fn key_meta(k: &str) -> (&'static str, Quantity) {
+    STATION_KEYS
+        .iter()
+        .find(|(kk, _, _)| *kk == k)
+        .map_or(("?", Quantity::Ratio), |(_, l, q)| (*l, *q))
+}
+
+const NAME_W: usize = 9;
+const VIA_W: usize = 12;
+const CELL_W: usize = 10;
+
+fn fit(s: &str, w: usize) -> String {
+    let n = s.chars().count();
+    if n > w {
+        s.chars().take(w.saturating_sub(1)).collect::<String>() + "~"
+    } else {
+        format!("{s:>w$}")
+    }
+}
+
+fn fit_left(s: &str, w: usize) -> String {
+    let n = s.chars().count();
+    if n > w {
+        s.chars().take(w.saturating_sub(1)).collect::<String>() + "~"
+    } else {
+        format!("{s:<w$}")
+    }
+}
+
+fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(e) = app.engine.as_ref() else {
+        return;
+    };
+    let n = e.stations().len() as u16;
+    let grid_h = (n + 4).min(area.height.saturating_sub(8)).max(5);
+    let [ga, lower] =
+        Layout::vertical([Constraint::Length(grid_h), Constraint::Min(3)]).areas(area);
+    let keys = app.columns.keys();
+    let inner_w = ga.width.saturating_sub(2) as usize;
+    let fit_cols = ((inner_w.saturating_sub(NAME_W + VIA_W + 2)) / CELL_W).max(1);
+    let first = if app.col >= fit_cols {
+        app.col + 1 - fit_cols
+    } else {
+        0
+    };
+    let shown: Vec<&str> = keys.iter().skip(first).take(fit_cols).copied().collect();
+    let mut lines = Vec::new();
+    let mut head = format!(
+        "  {}{}",
+        fit_left("station", NAME_W - 2),
+        fit_left(" via", VIA_W)
+    );
+    let mut unit_row = " ".repeat(NAME_W + VIA_W);
+    for k in &shown {
+        let (label, q) = key_meta(k);
+        head.push_str(&fit(label, CELL_W));
+        let u = unit_label(q, app.system);
+        unit_row.push_str(&fit(
+            &if u.is_empty() {
+                String::new()
+            } else {
+                format!("[{u}]")
+            },
+            CELL_W,
+        ));
+    }
+    lines.push(Line::from(Span::styled(
+        head,
+        Style::default().add_modifier(Modifier::BOLD),
+    )));
+    lines.push(Line::from(Span::styled(unit_row, th.dim())));
+    let visible = (ga.height as usize).saturating_sub(4);
+    let skip = if app.row >= visible {
+        app.row + 1 - visible
+    } else {
+        0
+    };
+    for (i, s) in e.stations().iter().enumerate().skip(skip).take(visible) {
+        let sel = i == app.row;
+        let p = &e.book().processes[e.producer_of(i)];
+        let status = e.station_status(i);
+        let marker = if sel { "> " } else { "  " };
+        let mut spans = vec![Span::raw(format!(
+            "{marker}{}{}",
+            fit_left(&s.name, NAME_W - 2),
+            fit_left(&format!(" {}", p.name), VIA_W)
+        ))];
+        for (ci, k) in shown.iter().enumerate() {
+            let (_, q) = key_meta(k);
+            let given = app.cell_given(i, k).is_some();
+            let text = match status {
+                StationStatus::Ok(v) => match e.station_key(v, k) {
+                    Some(x) => {
+                        let shownv = present::shown(x, q, app.system);
+                        let t = crate::report::sig(shownv, 5);
+                        if given { format!("={t}") } else { t }
+                    }
+                    None => "-".to_string(),
+                },
+                StationStatus::Failed(_) => "!!".to_string(),
+                StationStatus::Blocked(_) => "..".to_string(),
+            };
+            let mut style = match status {
+                StationStatus::Ok(_) if given => th.given(),
+                StationStatus::Ok(_) => Style::default(),
+                _ => th.bad(),
+            };
+            if sel && app.focus == Focus::Grid && first + ci == app.col {
+                style = style.add_modifier(Modifier::REVERSED);
+            } else if sel {
+                style = style.add_modifier(Modifier::UNDERLINED);
+            }
+            spans.push(Span::styled(fit(&text, CELL_W), style));
+        }
+        lines.push(Line::from(spans));
+    }
+    let title = format!(
+        " stations ({} of {} columns{}) ",
+        shown.len(),
+        keys.len(),
+        if keys.len() > shown.len() {
+            ", Left/Right scroll"
+        } else {
+            ""
+        }
+    );
+    f.render_widget(Paragraph::new(lines).block(th.block(title)), ga);
+    let [pa, sa] =
+        Layout::horizontal([Constraint::Percentage(62), Constraint::Percentage(38)]).areas(lower);
+    panel(f, app, th, pa);
+    summary(f, app, th, sa);
+}
+
+fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
+    let b = app.book()?;
+    let (_, q, text, si) = b.givens().into_iter().find(|(p, ..)| p == path)?;
+    let field = path.rsplit('.').next().unwrap_or(path).to_string();
+    let shown = with_unit(si, q, app.system);
+    let same = text.trim() == shown.trim() || matches!(q, Quantity::Ratio | Quantity::Mach);
+    Some((
+        field,
+        if same {
+            text
+        } else {
+            format!("{text}  ({shown})")
+        },
+        true,
+    ))
+}
+
+fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(e) = app.engine.as_ref() else {
+        return;
+    };
+    let Some(st) = e.stations().get(app.row) else {
+        return;
+    };
+    let p = &e.book().processes[e.producer_of(app.row)];
+    let mut lines = vec![Line::from(Span::styled(
+        format!("{}  [m mode, K kind]", mode_label(&p.kind)),
+        th.dim(),
+    ))];
+    let rows = app.panel_rows();
+    for (i, r) in rows.iter().enumerate() {
+        let sel = app.focus == Focus::Panel && i == app.panel;
+        let marker = if sel { ">" } else { " " };
+        let (text, style) = match r {
+            PanelRow::Given(path) => match given_line(app, path) {
+                Some((field, val, _)) => {
+                    let owner = if path.starts_with("station.") {
+                        "station"
+                    } else {
+                        ""
+                    };
+                    (
+                        format!("{marker} {:<14} = {val} {owner}", field),
+                        th.given(),
+                    )
+                }
+                None => continue,
+            },
+            PanelRow::Statics => (
+                format!(
+                    "{marker} static state   : {} (Enter cycles)",
+                    match &st.statics {
+                        None => "not fixed here",
+                        Some(crate::book::Statics::Mach(_)) => "by Mach number",
+                        Some(crate::book::Statics::Pressure(_)) => "by static pressure",
+                        Some(crate::book::Statics::Velocity(_)) => "by velocity",
+                        Some(crate::book::Statics::Area(_)) => "by area",
+                    }
+                ),
+                Style::default(),
+            ),
+            PanelRow::Branch => (
+                format!(
+                    "{marker} branch         : {} (Enter toggles)",
+                    match st.branch {
+                        Some(crate::flow::Branch::Supersonic) => "supersonic",
+                        _ => "subsonic",
+                    }
+                ),
+                Style::default(),
+            ),
+        };
+        lines.push(Line::from(Span::styled(
+            text,
+            if sel { style.patch(th.sel()) } else { style },
+        )));
+    }
+    if let Some(r) = e.process(&p.name) {
+        for (k, v) in &r.figures {
+            let (label, q) = figure_meta(k);
+            lines.push(Line::from(format!(
+                "  {label:<22} {}",
+                with_unit(*v, q, app.system)
+            )));
+        }
+    }
+    let title = format!(
+        " into {}: {} \"{}\" ",
+        st.name,
+        crate::engine::compute::kind_name(&p.kind),
+        p.name
+    );
+    let title = if app.focus == Focus::Panel {
+        format!("{title}(Tab: grid) ")
+    } else {
+        format!("{title}(Tab: edit) ")
+    };
+    f.render_widget(
+        Paragraph::new(lines)
+            .block(th.block(title))
+            .wrap(Wrap { trim: false }),
+        area,
+    );
+}
+
+fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(e) = app.engine.as_ref() else {
+        return;
+    };
+    let mut lines = Vec::new();
+    for (_, label, v, q) in summary_entries(e) {
+        let label: String = label.chars().take(15).collect();
+        lines.push(Line::from(format!(
+            "{label:<15} {}",
+            with_unit(v, q, app.system)
+        )));
+    }
+    for s in &e.book().shafts {
+        if let Some(b) = e.shaft(&s.name) {
+            lines.push(Line::from(format!(
+                "shaft {}: {}",
+                s.name,
+                with_unit(b.compressor_power, Quantity::Power, app.system)
+            )));
+        }
+    }
+    let problems = e.problems();
+    if !problems.is_empty() {
+        lines.push(Line::from(Span::styled(
+            format!("{} problem(s):", problems.len()),
+            th.bad(),
+        )));
+        for p in problems.iter().take(4) {
+            lines.push(Line::from(Span::styled(format!(" {}", p.place), th.bad())));
+        }
+    }
+    f.render_widget(Paragraph::new(lines).block(th.block(" summary ")), area);
+}
+
+fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(e) = app.engine.as_ref() else {
+        return;
+    };
+    let [la, ra] = Layout::horizontal([Constraint::Length(20), Constraint::Min(20)]).areas(area);
+    let mut lines = Vec::new();
+    for (i, s) in e.stations().iter().enumerate() {
+        let mark = match e.station_status(i) {
+            StationStatus::Ok(_) => " ",
+            StationStatus::Failed(_) => "!",
+            StationStatus::Blocked(_) => ".",
+        };
+        let text = format!("{}{mark}{}", if i == app.row { ">" } else { " " }, s.name);
+        let style = if i == app.row {
+            th.sel()
+        } else {
+            Style::default()
+        };
+        lines.push(Line::from(Span::styled(text, style)));
+    }
+    f.render_widget(Paragraph::new(lines).block(th.block(" flow path ")), la);
+    let name = e
+        .stations()
+        .get(app.row)
+        .map_or(String::new(), |s| s.name.clone());
+    let body: Vec<Line> = match present::explanation(e, &name, app.system) {
+        Ok(ls) => ls.into_iter().map(Line::from).collect(),
+        Err(m) => vec![Line::from(Span::styled(
+            format!("station {name}: {m}"),
+            th.bad(),
+        ))],
+    };
+    f.render_widget(
+        Paragraph::new(body)
+            .block(th.block(" how each value was obtained (Up/Down: previous/next station) "))
+            .wrap(Wrap { trim: false }),
+        ra,
+    );
+}
+
+fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(e) = app.engine.as_ref() else {
+        return;
+    };
+    let mut pts = Vec::new();
+    let mut labels = Vec::new();
+    let names: Vec<String> = e.stations().iter().map(|s| s.name.clone()).collect();
+    for (i, s) in e.stations().iter().enumerate() {
+        let v = match e.station_status(i) {
+            StationStatus::Ok(v) => Some(v),
+            _ => None,
+        };
+        let sv = v.and_then(|v| e.station_key(v, "s"));
+        let tt = v.map(|v| v.tt);
+        match (sv, tt) {
+            (Some(sv), Some(tt)) => pts.push((
+                present::shown(sv, Quantity::SpecificHeat, app.system),
+                present::shown(tt, Quantity::Temperature, app.system),
+            )),
+            _ => pts.push((f64::NAN, f64::NAN)),
+        }
+        labels.push(s.name.as_str());
+    }
+    let mut segs = Vec::new();
+    for p in &e.book().processes {
+        let to = names.iter().position(|n| *n == p.to);
+        let from = p
+            .from
+            .as_ref()
+            .and_then(|f| names.iter().position(|n| n == f));
+        if let (Some(a), Some(b)) = (from, to) {
+            segs.push((a, b));
+        }
+        if let crate::book::Kind::Mixer(m) = &p.kind
+            && let (Some(a), Some(b)) = (names.iter().position(|n| *n == m.secondary), to) {
+                segs.push((a, b));
+            }
+        if let crate::book::Kind::Split(s) = &p.kind
+            && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == s.bypass)) {
+                segs.push((a, b));
+            }
+    }
+    let mark = if th.ascii { '*' } else { '\u{25cf}' };
+    let series = [Series {
+        points: pts,
+        segments: segs,
+        mark,
+        labels,
+    }];
+    let inner = Rect {
+        x: area.x + 1,
+        y: area.y + 1,
+        width: area.width.saturating_sub(2),
+        height: area.height.saturating_sub(2),
+    };
+    let lines = plot::render(
+        &series,
+        inner.width as usize,
+        inner.height as usize,
+        th.ascii,
+        &format!(
+            "entropy s [{}] from 298.15 K, 101.325 kPa",
+            unit_label(Quantity::SpecificHeat, app.system)
+        ),
+        &format!(
+            "total temperature Tt [{}]",
+            unit_label(Quantity::Temperature, app.system)
+        ),
+    );
+    f.render_widget(
+        Paragraph::new(lines.into_iter().map(Line::from).collect::<Vec<_>>())
+            .block(th.block(" Tt-s diagram of the stations ")),
+        area,
+    );
+}
+
+fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+    let Some(sw) = &app.sweep else {
+        f.render_widget(
+            Paragraph::new("No sweep yet: press 4 to set one up.").block(th.block(" sweep ")),
+            area,
+        );
+        return;
+    };
+    let [ca, ta] =
+        Layout::horizontal([Constraint::Percentage(58), Constraint::Percentage(42)]).areas(area);
+    let qv = app
+        .book()
+        .and_then(|b| {
+            b.givens()
+                .into_iter()
+                .find(|(p, ..)| *p == sw.vary)
+                .map(|(_, q, ..)| q)
+        })
+        .unwrap_or(Quantity::Ratio);
+    let qr = present::quantity(&sw.report[0]);
+    let pts: Vec<(f64, f64)> = sw
+        .rows
+        .iter()
+        .map(|(x, ys)| {
+            (
+                present::shown(*x, qv, app.system),
+                ys[0].map_or(f64::NAN, |y| present::shown(y, qr, app.system)),
+            )
+        })
+        .collect();
+    let segs = (1..pts.len()).map(|i| (i - 1, i)).collect();
+    let mark = if th.ascii { '*' } else { '\u{25cf}' };
+    let inner_w = ca.width.saturating_sub(2) as usize;
+    let inner_h = ca.height.saturating_sub(2) as usize;
+    let lines = plot::render(
+        &[Series {
+            points: pts,
+            segments: segs,
+            mark,
+            labels: Vec::new(),
+        }],
+        inner_w,
+        inner_h,
+        th.ascii,
+        &format!("{} [{}]", sw.vary, unit_label(qv, app.system)),
+        &format!("{} [{}]", sw.report[0], unit_label(qr, app.system)),
+    );
+    f.render_widget(
+        Paragraph::new(lines.into_iter().map(Line::from).collect::<Vec<_>>())
+            .block(th.block(" sweep: first reported value (Enter on 4 to change) ")),
+        ca,
+    );
+    let mut tl = Vec::new();
+    let field = |p: &str| p.rsplit('.').next().unwrap_or(p).to_string();
+    let mut head = fit(&field(&sw.vary), 10);
+    for r in &sw.report {
+        head.push_str(&fit(&field(r), 11));
+    }
+    tl.push(Line::from(Span::styled(
+        head,
+        Style::default().add_modifier(Modifier::BOLD),
+    )));
+    for (x, ys) in &sw.rows {
+        let mut l = fit(
+            &crate::report::sig(present::shown(*x, qv, app.system), 5),
+            10,
+        );
+        for (r, y) in sw.report.iter().zip(ys) {
+            let q = present::quantity(r);
+            l.push_str(&fit(
+                &y.map_or("-".into(), |y| {
+                    crate::report::sig(present::shown(y, q, app.system), 5)
+                }),
+                11,
+            ));
+        }
+        tl.push(Line::from(l));
+    }
+    f.render_widget(Paragraph::new(tl).block(th.block(" table ")), ta);
+}
+
+fn centered(area: Rect, w: u16, h: u16) -> Rect {
+    let w = w.min(area.width);
+    let h = h.min(area.height);
+    Rect {
+        x: area.x + (area.width - w) / 2,
+        y: area.y + (area.height - h) / 2,
+        width: w,
+        height: h,
+    }
+}
+
+fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
+    let cursor = if th.ascii { "_" } else { "\u{2588}" };
+    match p {
+        Popup::Edit {
+            path,
+            quantity,
+            input,
+        } => {
+            let r = centered(area, 70, 7);
+            f.render_widget(Clear, r);
+            let lines = vec![
+                Line::from(format!("{input}{cursor}")),
+                Line::from(""),
+                Line::from(Span::styled(
+                    format!("accepts {}", units::accepted(*quantity)),
+                    th.dim(),
+                )),
+                Line::from(Span::styled(
+                    "Enter applies and recomputes; Esc cancels; ctrl-u clears",
+                    th.dim(),
+                )),
+            ];
+            f.render_widget(
+                Paragraph::new(lines)
+                    .block(th.block(format!(" edit {path} ")))
+                    .wrap(Wrap { trim: true }),
+                r,
+            );
+        }
+        Popup::Confirm { text, .. } => {
+            let r = centered(area, 66, 6);
+            f.render_widget(Clear, r);
+            f.render_widget(
+                Paragraph::new(text.clone())
+                    .block(th.block(" confirm (y/n) "))
+                    .wrap(Wrap { trim: true }),
+                r,
+            );
+        }
+        Popup::Text { title, input, .. } => {
+            let r = centered(area, 66, 5);
+            f.render_widget(Clear, r);
+            let lines = vec![
+                Line::from(format!("{input}{cursor}")),
+                Line::from(Span::styled("Enter accepts, Esc cancels", th.dim())),
+            ];
+            f.render_widget(
+                Paragraph::new(lines).block(th.block(format!(" {title} "))),
+                r,
+            );
+        }
+        Popup::Choose {
+            title, items, sel, ..
+        } => {
+            let h = (items.len() as u16 + 4).min(area.height);
+            let r = centered(area, 76, h);
+            f.render_widget(Clear, r);
+            let visible = h.saturating_sub(3) as usize;
+            let skip = if *sel >= visible {
+                sel + 1 - visible
+            } else {
+                0
+            };
+            let mut lines: Vec<Line> = items
+                .iter()
+                .enumerate()
+                .skip(skip)
+                .take(visible)
+                .map(|(i, s)| {
+                    if i == *sel {
+                        Line::from(Span::styled(format!("> {s}"), th.sel()))
+                    } else {
+                        Line::from(format!("  {s}"))
+                    }
+                })
+                .collect();
+            lines.push(Line::from(Span::styled(
+                "Up/Down choose, Enter take, Esc back",
+                th.dim(),
+            )));
+            f.render_widget(
+                Paragraph::new(lines).block(th.block(format!(" {title} "))),
+                r,
+            );
+        }
+        Popup::Setup { sel } => {
+            let rows = app.setup_rows();
+            let h = (rows.len() as u16 + 4).min(area.height);
+            let r = centered(area, 70, h);
+            f.render_widget(Clear, r);
+            let b = app.book();
+            let mut lines = Vec::new();
+            for (i, row) in rows.iter().enumerate() {
+                let text = match (row, b) {
+                    (SetupRow::Condition, Some(b)) => format!(
+                        "ambient          : {}",
+                        match b.ambient.condition {
+                            crate::book::Condition::Standard { .. } => "standard atmosphere",
+                            crate::book::Condition::Measured { .. } => "measured p and T",
+                        }
+                    ),
+                    (SetupRow::Flight, Some(b)) => format!(
+                        "flight given by  : {}",
+                        match b.ambient.flight {
+                            crate::book::Flight::Mach(_) => "Mach number",
+                            crate::book::Flight::Speed(_) => "speed",
+                        }
+                    ),
+                    (SetupRow::Humidity, Some(b)) => format!(
+                        "humidity         : {}",
+                        if b.ambient.humidity.is_some() {
+                            "on"
+                        } else {
+                            "dry air"
+                        }
+                    ),
+                    (SetupRow::Gas, Some(b)) => format!(
+                        "gas model        : {}",
+                        match b.gas {
+                            crate::book::GasSettings::ThermallyPerfect => "thermally perfect",
+                            crate::book::GasSettings::CaloricallyPerfect { .. } =>
+                                "calorically perfect",
+                        }
+                    ),
+                    (SetupRow::KeepResults, Some(b)) => format!(
+                        "store results    : {}",
+                        if b.keep_results { "yes" } else { "no" }
+                    ),
+                    (SetupRow::Given(p), _) => match given_line(app, p) {
+                        Some((field, val, _)) => format!("  {field:<15}= {val}"),
+                        None => continue,
+                    },
+                    _ => continue,
+                };
+                let marker = if i == *sel { "> " } else { "  " };
+                let style = if i == *sel {
+                    th.sel()
+                } else if matches!(row, SetupRow::Given(_)) {
+                    th.given()
+                } else {
+                    Style::default()
+                };
+                lines.push(Line::from(Span::styled(format!("{marker}{text}"), style)));
+            }
+            lines.push(Line::from(Span::styled(
+                "Enter edits or toggles; Esc closes",
+                th.dim(),
+            )));
+            f.render_widget(
+                Paragraph::new(lines).block(th.block(" ambient and gas ")),
+                r,
+            );
+        }
+        Popup::SweepForm { fields, sel } => {
+            let r = centered(area, 72, 10);
+            f.render_widget(Clear, r);
+            let labels = [
+                "vary (given path)",
+                "from",
+                "to",
+                "steps",
+                "report (paths, comma)",
+            ];
+            let mut lines = Vec::new();
+            for (i, (l, v)) in labels.iter().zip(fields.iter()).enumerate() {
+                let c = if i == *sel { cursor } else { "" };
+                let style = if i == *sel {
+                    th.sel()
+                } else {
+                    Style::default()
+                };
+                lines.push(Line::from(Span::styled(format!("{l:<22} {v}{c}"), style)));
+            }
+            lines.push(Line::from(Span::styled(
+                "Tab/Up/Down field, Enter runs, Esc back",
+                th.dim(),
+            )));
+            f.render_widget(Paragraph::new(lines).block(th.block(" sweep set-up ")), r);
+        }
+        Popup::Help { scroll } => {
+            let r = centered(area, area.width.saturating_sub(4), area.height);
+            f.render_widget(Clear, r);
+            let mut lines = vec![Line::from(Span::styled(CAUTION, th.bad())), Line::from("")];
+            for (c, name, doc, _) in COMMANDS {
+                lines.push(Line::from(format!(
+                    "{:<16} {:<16} {doc}",
+                    app.keymap.keys_of(*c),
+                    name
+                )));
+            }
+            lines.push(Line::from(""));
+            lines.push(Line::from(
+                "In a popup: type a value with or without unit (\"14.7 psia\", \"59 degF\");",
+            ));
+            lines.push(Line::from(
+                "Enter applies, Esc cancels. A value shown with = is a given; !! marks a",
+            ));
+            lines.push(Line::from(
+                "station whose process has a problem, .. one blocked by a problem upstream.",
+            ));
+            lines.push(Line::from(
+                "Keys can be changed in the settings file (see the README).",
+            ));
+            f.render_widget(
+                Paragraph::new(lines)
+                    .block(th.block(" help (Up/Down scroll, any other key closes) "))
+                    .scroll((*scroll, 0))
+                    .wrap(Wrap { trim: false }),
+                r,
+            );
+        }
+    }
+}
