@@ -165,3 +165,29 @@ fn event_loop(app: &mut App) -> Result<(), String> {
         }
     }
 }
+
+/// Draw the app into an off-screen buffer of `w` x `h` cells (tests,
+/// benchmarks): the same drawing code as the terminal.
+pub fn render_buffer(app: &App, w: u16, h: u16) -> ratatui::buffer::Buffer {
+    let backend = ratatui::backend::TestBackend::new(w, h);
+    match Terminal::new(backend) {
+        Ok(mut t) => {
+            let _ = t.draw(|f| ui::draw(f, app));
+            t.backend().buffer().clone()
+        }
+        Err(_) => ratatui::buffer::Buffer::empty(ratatui::layout::Rect::new(0, 0, w, h)),
+    }
+}
+
+/// The screen text of [`render_buffer`], one line per row, trailing spaces kept.
+pub fn render_text(app: &App, w: u16, h: u16) -> String {
+    let b = render_buffer(app, w, h);
+    let mut out = String::new();
+    for y in 0..h {
+        for x in 0..w {
+            out.push_str(b[(x, y)].symbol());
+        }
+        out.push('\n');
+    }
+    out
+}
