@@ -559,14 +559,48 @@ pub struct Goal {
     pub high: Given,
 }
 
-/// One given field met by [`Workbook::visit_givens`].
+/// One given field met by [`Workbook::visit_givens`]. The path is built
+/// only on request, so walking every given to find one is cheap.
 pub struct GivenField<'a> {
-    /// Its path.
-    pub path: String,
+    /// Scope ("ambient", "gas", "station", "process", "shaft").
+    pub scope: &'static str,
+    /// Station, process or shaft name (empty for ambient and gas).
+    pub name: &'a str,
+    /// Field key.
+    pub key: &'a str,
     /// Its quantity.
     pub quantity: Quantity,
     /// The given.
     pub given: &'a mut Given,
+}
+
+impl GivenField<'_> {
+    /// The full path ("process.compressor.pressure_ratio").
+    pub fn path(&self) -> String {
+        if self.name.is_empty() {
+            format!("{}.{}", self.scope, self.key)
+        } else {
+            format!("{}.{}.{}", self.scope, self.name, self.key)
+        }
+    }
+
+    /// Whether this field has the path `p` (no allocation).
+    pub fn is(&self, p: &str) -> bool {
+        let Some(rest) = p.strip_prefix(self.scope).and_then(|r| r.strip_prefix('.')) else {
+            return false;
+        };
+        let Some(rest) = rest.strip_suffix(self.key).and_then(|r| {
+            r.strip_suffix('.')
+                .or(if self.name.is_empty() { Some(r) } else { None })
+        }) else {
+            return false;
+        };
+        if self.name.is_empty() {
+            rest.is_empty()
+        } else {
+            rest == self.name
+        }
+    }
 }
 
 /// Errors of the workbook structure.
@@ -621,20 +655,25 @@ pub enum BookError {
 impl Workbook {
     /// Walk every given with its path and quantity.
     pub fn visit_givens(&mut self, f: &mut dyn FnMut(GivenField<'_>)) {
-        let mut g = |path: String, quantity: Quantity, given: &mut Given| {
-            f(GivenField {
-                path,
-                quantity,
-                given,
-            })
-        };
+        let mut g =
+            |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &mut Given| {
+                f(GivenField {
+                    scope,
+                    name,
+                    key,
+                    quantity,
+                    given,
+                })
+            };
         match &mut self.ambient.condition {
             Condition::Standard {
                 altitude, offset, ..
             } => {
-                g("ambient.altitude".into(), Quantity::Length, altitude);
+                g("ambient", "", "altitude", Quantity::Length, altitude);
                 g(
-                    "ambient.offset".into(),
+                    "ambient",
+                    "",
+                    "offset",
                     Quantity::TemperatureDifference,
                     offset,
                 );
@@ -643,20 +682,22 @@ impl Workbook {
                 pressure,
                 temperature,
             } => {
-                g("ambient.pressure".into(), Quantity::Pressure, pressure);
+                g("ambient", "", "pressure", Quantity::Pressure, pressure);
                 g(
-                    "ambient.temperature".into(),
+                    "ambient",
+                    "",
+                    "temperature",
                     Quantity::Temperature,
                     temperature,
                 );
             }
         }
         match &mut self.ambient.flight {
-            Flight::Mach(m) => g("ambient.flight_mach".into(), Quantity::Mach, m),
-            Flight::Speed(v) => g("ambient.flight_speed".into(), Quantity::Velocity, v),
+            Flight::Mach(m) => g("ambient", "", "flight_mach", Quantity::Mach, m),
+            Flight::Speed(v) => g("ambient", "", "flight_speed", Quantity::Velocity, v),
         }
         if let Some(h) = &mut self.ambient.humidity {
-            g("ambient.humidity".into(), Quantity::Ratio, h);
+            g("ambient", "", "humidity", Quantity::Ratio, h);
         }
         if let GasSettings::CaloricallyPerfect {
             gamma,
@@ -665,35 +706,35 @@ impl Workbook {
             hot_r,
         } = &mut self.gas
         {
-            g("gas.gamma".into(), Quantity::Ratio, gamma);
-            g("gas.r".into(), Quantity::SpecificHeat, r);
+            g("gas", "", "gamma", Quantity::Ratio, gamma);
+            g("gas", "", "r", Quantity::SpecificHeat, r);
             if let Some(x) = hot_gamma {
-                g("gas.hot_gamma".into(), Quantity::Ratio, x);
+                g("gas", "", "hot_gamma", Quantity::Ratio, x);
             }
             if let Some(x) = hot_r {
-                g("gas.hot_r".into(), Quantity::SpecificHeat, x);
+                g("gas", "", "hot_r", Quantity::SpecificHeat, x);
             }
         }
         for s in &mut self.stations {
-            let base = format!("station.{}", s.name);
+            let name = s.name.as_str();
             if let Some(x) = &mut s.tt {
-                g(format!("{base}.tt"), Quantity::Temperature, x);
+                g("station", name, "tt", Quantity::Temperature, x);
             }
             if let Some(x) = &mut s.pt {
-                g(format!("{base}.pt"), Quantity::Pressure, x);
+                g("station", name, "pt", Quantity::Pressure, x);
             }
             match &mut s.statics {
-                Some(Statics::Mach(x)) => g(format!("{base}.mach"), Quantity::Mach, x),
-                Some(Statics::Pressure(x)) => g(format!("{base}.p"), Quantity::Pressure, x),
-                Some(Statics::Velocity(x)) => g(format!("{base}.v"), Quantity::Velocity, x),
-                Some(Statics::Area(x)) => g(format!("{base}.area"), Quantity::Area, x),
+                Some(Statics::Mach(x)) => g("station", name, "mach", Quantity::Mach, x),
+                Some(Statics::Pressure(x)) => g("station", name, "p", Quantity::Pressure, x),
+                Some(Statics::Velocity(x)) => g("station", name, "v", Quantity::Velocity, x),
+                Some(Statics::Area(x)) => g("station", name, "area", Quantity::Area, x),
                 None => {}
             }
         }
         for p in &mut self.processes {
-            let base = format!("process.{}", p.name);
+            let name = p.name.as_str();
             let mut q = |field: &str, quantity: Quantity, given: &mut Given| {
-                g(format!("{base}.{field}"), quantity, given)
+                g("process", name, field, quantity, given)
             };
             match &mut p.kind {
                 Kind::Entry(Entry::Freestream { w }) => q("w", Quantity::MassFlow, w),
@@ -778,17 +819,19 @@ impl Workbook {
             }
         }
         for s in &mut self.shafts {
-            let base = format!("shaft.{}", s.name);
+            let name = s.name.as_str();
             g(
-                format!("{base}.mechanical_efficiency"),
+                "shaft",
+                name,
+                "mechanical_efficiency",
                 Quantity::Ratio,
                 &mut s.mechanical_efficiency,
             );
             if let Some(x) = &mut s.offtake {
-                g(format!("{base}.offtake"), Quantity::Power, x);
+                g("shaft", name, "offtake", Quantity::Power, x);
             }
             if let Some(x) = &mut s.speed {
-                g(format!("{base}.speed"), Quantity::RotationalSpeed, x);
+                g("shaft", name, "speed", Quantity::RotationalSpeed, x);
             }
         }
     }
@@ -802,7 +845,7 @@ impl Workbook {
             return Err(errors);
         }
         self.visit_givens(&mut |f| {
-            if let Err(e) = f.given.resolve(f.quantity, &f.path) {
+            if let Err(e) = f.given.resolve(f.quantity, &f.path()) {
                 errors.push(e.into());
             }
         });
@@ -819,7 +862,7 @@ impl Workbook {
             let goals: Vec<String> = self.goals.iter().map(|g| g.vary.clone()).collect();
             self.visit_givens(&mut |f| {
                 for (i, v) in goals.iter().enumerate() {
-                    if *v == f.path {
+                    if f.is(v) {
                         bounds.push((i, f.quantity));
                     }
                 }
@@ -852,8 +895,8 @@ impl Workbook {
     pub fn set_given(&mut self, path: &str, text: &str) -> Result<(), BookError> {
         let mut result: Option<Result<(), BookError>> = None;
         self.visit_givens(&mut |f| {
-            if f.path == path {
-                result = Some(match Given::parse(text, f.quantity, &f.path) {
+            if f.is(path) {
+                result = Some(match Given::parse(text, f.quantity, &f.path()) {
                     Ok(g) => {
                         *f.given = g;
                         Ok(())
@@ -876,7 +919,7 @@ impl Workbook {
         let mut copy = self.clone();
         let mut out = Vec::new();
         copy.visit_givens(&mut |f| {
-            out.push((f.path, f.quantity, f.given.text.clone(), f.given.si));
+            out.push((f.path(), f.quantity, f.given.text.clone(), f.given.si));
         });
         out
     }
@@ -884,5 +927,33 @@ impl Workbook {
     /// The station with this name.
     pub fn station(&self, name: &str) -> Option<&Station> {
         self.stations.iter().find(|s| s.name == name)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sheet() -> Workbook {
+        crate::format::parse(include_str!("../../sheets/turbofan.ron")).unwrap()
+    }
+
+    #[test]
+    fn every_given_path_round_trips_through_is_and_set_given() {
+        let mut b = sheet();
+        let all = b.givens();
+        assert!(all.iter().any(|(p, ..)| p.starts_with("shaft.")));
+        for (p, _, text, _) in &all {
+            let mut hits = 0;
+            b.visit_givens(&mut |f| {
+                if f.is(p) {
+                    assert_eq!(&f.path(), p);
+                    hits += 1;
+                }
+            });
+            assert_eq!(hits, 1, "{p}");
+            b.set_given(p, text).unwrap();
+        }
+        assert!(b.set_given("process.nosuch.w", "1").is_err());
     }
 }

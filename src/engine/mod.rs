@@ -485,7 +485,7 @@ impl Engine {
     pub fn set_si(&mut self, path: &str, si: f64) -> Result<(), BookError> {
         let mut found = false;
         self.book.visit_givens(&mut |f| {
-            if f.path == path {
+            if f.is(path) {
                 f.given.set_si(si);
                 found = true;
             }
@@ -839,7 +839,7 @@ impl Engine {
     fn set_si_quiet(&mut self, path: &str, si: f64) -> Result<(), String> {
         let mut found = false;
         self.book.visit_givens(&mut |f| {
-            if f.path == path {
+            if f.is(path) {
                 f.given.set_si(si);
                 found = true;
             }

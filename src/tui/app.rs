@@ -337,15 +337,16 @@ impl App {
         settings::remember(path);
         self.info(format!("opened {}", path.display()));
         if let Some(rp) = recovery_path(Some(path))
-            && rp.exists() {
-                self.popups.push(Popup::Confirm {
+            && rp.exists()
+        {
+            self.popups.push(Popup::Confirm {
                     text: format!(
                         "A recovery file from an interrupted session exists ({}). Load it? y loads it (then save to keep it), n deletes it.",
                         rp.display()
                     ),
                     then: Pending::LoadRecovery(rp),
                 });
-            }
+        }
         Ok(())
     }
 
@@ -820,9 +821,10 @@ impl App {
                 q.from = Some(upstream.clone());
             }
             if let Kind::Mixer(m) = &mut q.kind
-                && m.secondary == name {
-                    m.secondary = upstream.clone();
-                }
+                && m.secondary == name
+            {
+                m.secondary = upstream.clone();
+            }
         }
         nb.results = None;
         self.commit(
@@ -849,9 +851,10 @@ impl App {
                 q.from = Some(name.to_string());
             }
             if let Kind::Mixer(m) = &mut q.kind
-                && m.secondary == sel {
-                    m.secondary = name.to_string();
-                }
+                && m.secondary == sel
+            {
+                m.secondary = name.to_string();
+            }
         }
         let mut pname = format!("duct {name}");
         while nb.processes.iter().any(|p| p.name == pname) {

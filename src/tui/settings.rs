@@ -52,12 +52,13 @@ pub fn load() -> (Settings, Option<String>) {
     let mut s = Settings::default();
     let mut note = None;
     if let Some(p) = settings_path()
-        && let Ok(text) = std::fs::read_to_string(&p) {
-            match ron::from_str::<Settings>(&text) {
-                Ok(v) => s = v,
-                Err(e) => note = Some(format!("settings {}: {e} (defaults used)", p.display())),
-            }
+        && let Ok(text) = std::fs::read_to_string(&p)
+    {
+        match ron::from_str::<Settings>(&text) {
+            Ok(v) => s = v,
+            Err(e) => note = Some(format!("settings {}: {e} (defaults used)", p.display())),
         }
+    }
     if std::env::var_os("NO_COLOR").is_some() {
         s.color = false;
     }

@@ -495,13 +495,15 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             segs.push((a, b));
         }
         if let crate::book::Kind::Mixer(m) = &p.kind
-            && let (Some(a), Some(b)) = (names.iter().position(|n| *n == m.secondary), to) {
-                segs.push((a, b));
-            }
+            && let (Some(a), Some(b)) = (names.iter().position(|n| *n == m.secondary), to)
+        {
+            segs.push((a, b));
+        }
         if let crate::book::Kind::Split(s) = &p.kind
-            && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == s.bypass)) {
-                segs.push((a, b));
-            }
+            && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == s.bypass))
+        {
+            segs.push((a, b));
+        }
     }
     let mark = if th.ascii { '*' } else { '\u{25cf}' };
     let series = [Series {
