@@ -13,6 +13,8 @@
 //! * [`format`]: the RON workbook file (versioned, canonical, atomic saves).
 //! * [`present`]: presentation shared by the front ends (values with units,
 //!   station tables, explanation text).
+//! * [`reduce`]: recorded scans through a workbook's channel map,
+//!   measurement uncertainty (linearised and Monte Carlo).
 //! * [`table`]: flow tables (rows of relation values) for the command line.
 //! * [`report`]: tables of results and their text, CSV and JSON printers.
 //!
@@ -34,6 +36,7 @@ pub mod flow;
 pub mod format;
 pub mod gas;
 pub mod present;
+pub mod reduce;
 pub mod report;
 pub mod table;
 pub mod templates;

@@ -34,6 +34,11 @@ pub const TEMPLATES: &[(&str, &str, &str)] = &[
         "combustor rig reduced from measured exit temperature and fuel flow",
         include_str!("../sheets/combustor-rig.ron"),
     ),
+    (
+        "compressor-speedline",
+        "compressor rig with a channel map for recorded scans and uncertainties",
+        include_str!("../sheets/compressor-speedline.ron"),
+    ),
 ];
 
 /// The text of a template by name.

@@ -111,6 +111,9 @@ pub struct Workbook {
     /// Goals: vary a given until a derived value reaches a target.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub goals: Vec<Goal>,
+    /// Channel map: which scan columns feed which givens (test-data reduction).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub channels: Option<Channels>,
     /// Store derived results in the file on save.
     #[serde(default, skip_serializing_if = "is_false")]
     pub keep_results: bool,
@@ -129,6 +132,49 @@ pub struct StoredRow {
     pub values: Vec<(String, f64)>,
 }
 
+/// Channel map of a workbook for test-data reduction.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Channels {
+    /// Barometer channel: makes gauge readings absolute.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub barometer: Option<Channel>,
+    /// Channels feeding givens.
+    pub map: Vec<Channel>,
+}
+
+/// One channel: scan columns (averaged) feeding a given.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Channel {
+    /// Path of the given it feeds (empty for the barometer).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub given: String,
+    /// Scan columns; several are averaged (probes of a rake).
+    pub columns: Vec<String>,
+    /// Area weights of the columns (empty: arithmetic mean).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub weights: Vec<f64>,
+    /// Unit of the recorded values ("psig", "degF", "kg/s").
+    pub unit: String,
+    /// Systematic standard uncertainty, in a unit of the quantity or as "%" of the reading.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub systematic: Option<String>,
+    /// Random standard uncertainty (of the averaged value), same forms.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub random: Option<String>,
+}
+
+/// Reference condition for standard-day corrections.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Reference {
+    /// Reference total temperature.
+    pub temperature: Given,
+    /// Reference total pressure.
+    pub pressure: Given,
+}
+
 /// The ambient block.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -140,6 +186,9 @@ pub struct Ambient {
     /// Specific humidity of the air (kg vapour per kg moist air).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub humidity: Option<Given>,
+    /// Reference condition of corrected values (ISA sea level if absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reference: Option<Reference>,
 }
 
 /// How the ambient static state is given.
@@ -695,6 +744,22 @@ impl Workbook {
         match &mut self.ambient.flight {
             Flight::Mach(m) => g("ambient", "", "flight_mach", Quantity::Mach, m),
             Flight::Speed(v) => g("ambient", "", "flight_speed", Quantity::Velocity, v),
+        }
+        if let Some(r) = &mut self.ambient.reference {
+            g(
+                "ambient",
+                "",
+                "reference_temperature",
+                Quantity::Temperature,
+                &mut r.temperature,
+            );
+            g(
+                "ambient",
+                "",
+                "reference_pressure",
+                Quantity::Pressure,
+                &mut r.pressure,
+            );
         }
         if let Some(h) = &mut self.ambient.humidity {
             g("ambient", "", "humidity", Quantity::Ratio, h);

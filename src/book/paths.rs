@@ -106,7 +106,7 @@ pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Summary keys: key, label, quantity.
-pub const SUMMARY_KEYS: [(&str, &str, Quantity); 10] = [
+pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
     ("thrust_gross", "gross thrust", Quantity::Force),
     ("ram_drag", "ram drag", Quantity::Force),
     ("thrust_net", "net thrust", Quantity::Force),
@@ -121,6 +121,8 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 10] = [
     ("eta_propulsive", "propulsive efficiency", Quantity::Ratio),
     ("eta_overall", "overall efficiency", Quantity::Ratio),
     ("air_flow", "air flow", Quantity::MassFlow),
+    ("thrust_corrected", "corrected net thrust", Quantity::Force),
+    ("fuel_corrected", "corrected fuel flow", Quantity::MassFlow),
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).

@@ -12,6 +12,7 @@ mod diff;
 pub mod eval;
 pub mod explain;
 mod files;
+mod reduce;
 mod sweep;
 mod table;
 
@@ -63,6 +64,10 @@ enum Command {
     New(files::NewArgs),
     /// Rewrite workbooks in canonical form; --check only reports.
     Fmt(files::FmtArgs),
+    /// Reduce recorded test scans through a workbook's channel map.
+    Reduce(reduce::Args),
+    /// Measurement uncertainty of a workbook's derived values.
+    Uncertainty(reduce::UncArgs),
 }
 
 /// Output format shared by the commands that print rows.
@@ -158,6 +163,8 @@ pub fn run() -> ExitCode {
         Command::Explain(a) => explain::run(a),
         Command::New(a) => files::new(a),
         Command::Fmt(a) => files::fmt(a),
+        Command::Reduce(a) => reduce::run(a),
+        Command::Uncertainty(a) => reduce::uncertainty(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

@@ -79,6 +79,13 @@ pub struct Ctx<'a> {
     pub shaft_need: Option<f64>,
     /// Speed of the shaft the machine is on, rad/s, when given.
     pub shaft_speed: Option<f64>,
+    /// Reference total temperature and pressure of corrected values.
+    pub reference: (f64, f64),
+}
+
+/// Mass flow corrected to a reference: W sqrt(Tt/Tref) / (pt/pref).
+pub fn corrected_flow(w: f64, tt: f64, pt: f64, r: (f64, f64)) -> f64 {
+    w * (tt / r.0).sqrt() / (pt / r.1)
 }
 
 type Res<T> = Result<T, String>;
@@ -930,10 +937,10 @@ fn stage_figures(ctx: &Ctx, st: &Stage, w: f64, i: &StationValue) -> Vec<(&'stat
         ("power", st.work * w),
         ("tt_ratio", st.tt_out / i.tt),
         ("tt_ideal", st.tt_ideal),
-        ("wc_in", crate::atmosphere::corrected_flow(i.w, i.tt, i.pt)),
+        ("wc_in", corrected_flow(i.w, i.tt, i.pt, ctx.reference)),
     ];
     if let Some(n) = ctx.shaft_speed {
-        v.push(("nc", crate::atmosphere::corrected_speed(n, i.tt)));
+        v.push(("nc", n / (i.tt / ctx.reference.0).sqrt()));
     }
     v
 }

@@ -133,6 +133,11 @@ pub struct Summary {
     pub eta_overall: Option<f64>,
     /// Air entering, kg/s.
     pub air_flow: Option<f64>,
+    /// Net thrust corrected to the reference: F / delta, delta from the
+    /// first entry's total pressure.
+    pub thrust_corrected: Option<f64>,
+    /// Fuel flow corrected to the reference: Wf / (delta sqrt(theta)).
+    pub fuel_corrected: Option<f64>,
 }
 
 impl Summary {
@@ -149,6 +154,8 @@ impl Summary {
             "eta_propulsive" => self.eta_propulsive,
             "eta_overall" => self.eta_overall,
             "air_flow" => self.air_flow,
+            "thrust_corrected" => self.thrust_corrected,
+            "fuel_corrected" => self.fuel_corrected,
             _ => None,
         }
     }
@@ -513,6 +520,9 @@ impl Engine {
                 self.refresh_ambient();
                 self.dirty.iter_mut().for_each(|d| *d = true);
             }
+            Scope::Ambient if p.key.starts_with("reference") => {
+                self.dirty.iter_mut().for_each(|d| *d = true);
+            }
             Scope::Ambient => {
                 self.refresh_ambient();
                 for (i, d) in self.dirty.iter_mut().enumerate() {
@@ -674,6 +684,7 @@ impl Engine {
             ambient,
             shaft_need,
             shaft_speed,
+            reference: self.reference(),
         };
         let to = &self.book.stations[self.graph.station_index[&p.to]];
         let to2 = match &p.kind {
@@ -725,9 +736,26 @@ impl Engine {
             .sum();
         s.air_flow = Some(air);
         s.fuel = Some(fuel);
+        // Corrections use the totals of the first entry (the inlet).
+        let inlet = self
+            .graph
+            .order
+            .iter()
+            .find(|&&i| matches!(self.book.processes[i].kind, Kind::Entry(_)))
+            .and_then(|&i| match &self.nodes[i] {
+                Some(NodeOut::Done(r)) => Some((r.out.tt, r.out.pt)),
+                _ => None,
+            });
+        let (t_ref, p_ref) = self.reference();
+        let corr = inlet.map(|(tt, pt)| ((tt / t_ref), (pt / p_ref)));
+        if let Some((theta, delta)) = corr
+            && fuel > 0.0 {
+                s.fuel_corrected = Some(fuel / (delta * theta.sqrt()));
+            }
         if nozzles > 0 {
             let net = gross - ram;
             s.thrust_gross = Some(gross);
+            s.thrust_corrected = corr.map(|(_, delta)| net / delta);
             s.ram_drag = Some(ram);
             s.thrust_net = Some(net);
             if air > 0.0 {
@@ -912,6 +940,18 @@ impl Engine {
         self.graph.producer[s]
     }
 
+    /// Reference total temperature and pressure of corrected values
+    /// (ISA sea level unless the ambient block names one).
+    pub fn reference(&self) -> (f64, f64) {
+        match &self.book.ambient.reference {
+            Some(r) => (r.temperature.si(), r.pressure.si()),
+            None => (
+                atmosphere::SEA_LEVEL_TEMPERATURE_K,
+                atmosphere::SEA_LEVEL_PRESSURE_PA,
+            ),
+        }
+    }
+
     /// The summary.
     pub fn summary(&self) -> &Summary {
         &self.summary
@@ -967,7 +1007,7 @@ impl Engine {
             "a" => f.map(|f| f.a),
             "mach" => f.map(|f| f.mach),
             "q" => f.map(|f| f.dynamic_pressure()),
-            "wc" => Some(atmosphere::corrected_flow(v.w, v.tt, v.pt)),
+            "wc" => Some(compute::corrected_flow(v.w, v.tt, v.pt, self.reference())),
             "ht" => gas()?.sensible_h(v.tt).ok(),
             "s" => {
                 let g = gas()?;

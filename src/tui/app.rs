@@ -16,6 +16,10 @@ use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
 use std::path::{Path, PathBuf};
 use std::time::SystemTime;
 
+/// Lines the help overlay can scroll by (about its length, so scrolling
+/// down never runs into blank pages).
+const HELP_SCROLL_MAX: u16 = super::keymap::COMMANDS.len() as u16 + 8;
+
 /// The main views.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum View {
@@ -502,6 +506,7 @@ impl App {
                     self.panel = 0;
                 }
             }
+            Command::Edit if self.view == View::Sweep => self.open_sweep_form(),
             Command::Edit => self.edit_selected(),
             Command::ViewGrid => self.view = View::Grid,
             Command::ViewWalk => self.view = View::Walk,
@@ -703,6 +708,7 @@ impl App {
             }
         }
         self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = self.panel.min(self.panel_rows().len().saturating_sub(1));
     }
 
     fn redo(&mut self) {
@@ -719,6 +725,7 @@ impl App {
             }
         }
         self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = self.panel.min(self.panel_rows().len().saturating_sub(1));
     }
 
     /// Save (asks first when the file changed on disk since it was read).
@@ -1087,6 +1094,37 @@ impl App {
         let Some(b) = self.book() else {
             return;
         };
+        // Changing a sweep starts from the one shown.
+        if let Some(sw) = &self.sweep
+            && let Some((_, q, ..)) = b.givens().into_iter().find(|(p, ..)| *p == sw.vary)
+        {
+            let u = crate::present::unit_of(q, self.system);
+            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
+                ""
+            } else {
+                u.symbol
+            };
+            let end = |x: f64| {
+                format!("{} {sym}", fmt_num(units::from_si(x, u)))
+                    .trim()
+                    .to_string()
+            };
+            let (from, to) = match (sw.rows.first(), sw.rows.last()) {
+                (Some(a), Some(z)) => (end(a.0), end(z.0)),
+                _ => (String::new(), String::new()),
+            };
+            self.popups.push(Popup::SweepForm {
+                fields: [
+                    sw.vary.clone(),
+                    from,
+                    to,
+                    sw.rows.len().saturating_sub(1).max(1).to_string(),
+                    sw.report.join(", "),
+                ],
+                sel: 0,
+            });
+            return;
+        }
         let givens = b.givens();
         let pick = match self.panel_rows().get(self.panel) {
             Some(PanelRow::Given(p)) if self.focus == Focus::Panel => Some(p.clone()),
@@ -1173,14 +1211,14 @@ impl App {
         let ctrl = ev.modifiers.contains(KeyModifiers::CONTROL);
         match top {
             Popup::Help { scroll } => match code {
-                KeyCode::Down | KeyCode::Char('j') => {
-                    self.popups.push(Popup::Help { scroll: scroll + 1 })
-                }
+                KeyCode::Down | KeyCode::Char('j') => self.popups.push(Popup::Help {
+                    scroll: (scroll + 1).min(HELP_SCROLL_MAX),
+                }),
                 KeyCode::Up | KeyCode::Char('k') => self.popups.push(Popup::Help {
                     scroll: scroll.saturating_sub(1),
                 }),
                 KeyCode::PageDown => self.popups.push(Popup::Help {
-                    scroll: scroll + 10,
+                    scroll: (scroll + 10).min(HELP_SCROLL_MAX),
                 }),
                 KeyCode::PageUp => self.popups.push(Popup::Help {
                     scroll: scroll.saturating_sub(10),
@@ -1253,6 +1291,14 @@ impl App {
                 KeyCode::Enter => self.text_done(purpose, &input),
                 KeyCode::Backspace => {
                     input.pop();
+                    self.popups.push(Popup::Text {
+                        title,
+                        input,
+                        purpose,
+                    });
+                }
+                KeyCode::Char('u') if ctrl => {
+                    input.clear();
                     self.popups.push(Popup::Text {
                         title,
                         input,
@@ -1385,11 +1431,15 @@ impl App {
                         self.error(e);
                         self.popups.push(Popup::SweepForm { fields, sel });
                     } else {
-                        self.info("sweep done; 4 then Enter to change it");
+                        self.info("sweep done; Enter in this view changes it");
                     }
                 }
                 KeyCode::Backspace => {
                     fields[sel].pop();
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                }
+                KeyCode::Char('u') if ctrl => {
+                    fields[sel].clear();
                     self.popups.push(Popup::SweepForm { fields, sel });
                 }
                 KeyCode::Char(c) if !ctrl => {

@@ -53,7 +53,8 @@ pub fn render(
     y_label: &str,
 ) -> Vec<String> {
     let label_w = 9;
-    let (pw, ph) = (width.saturating_sub(label_w + 1), height.saturating_sub(3));
+    // Rows: y label, plot, axis, x ticks, x label.
+    let (pw, ph) = (width.saturating_sub(label_w + 1), height.saturating_sub(4));
     if pw < 10 || ph < 4 {
         return vec!["(enlarge the terminal to see the chart)".to_string()];
     }
@@ -148,9 +149,11 @@ pub fn render(
     put(label_w + 1, &lo);
     put(label_w + 1 + pw / 2 - mid.len() / 2, &mid);
     put((label_w + 1 + pw).saturating_sub(hi.len()), &hi);
-    let mut axis: String = axis.into_iter().collect();
-    axis = format!("{}  {x_label}", axis.trim_end());
-    out.push(axis);
+    let axis: String = axis.into_iter().collect();
+    out.push(axis.trim_end().to_string());
+    // The x label on its own row, right-aligned under the axis (it used to
+    // follow the high tick and fell off the right edge).
+    out.push(format!("{x_label:>w$}", w = label_w + 1 + pw));
     out.truncate(height);
     out
 }
@@ -171,6 +174,10 @@ mod tests {
         assert!(lines.iter().all(|l| l.is_ascii()));
         // The high point is on the first plot row, the low one on the last.
         assert!(lines[1].contains("*b"));
-        assert!(lines[lines.len() - 3].contains("*a"));
+        assert!(lines[lines.len() - 4].contains("*a"));
+        // Both axis labels are drawn, whole.
+        assert_eq!(lines[0], "y");
+        assert_eq!(lines[lines.len() - 1].trim(), "x");
+        assert_eq!(lines.len(), 12);
     }
 }

@@ -311,6 +311,10 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         format!("{}  [m mode, K kind]", mode_label(&p.kind)),
         th.dim(),
     ))];
+    // Why the station is not computed, whole (the status line may cut it).
+    if let Some(problem) = station_problem(app) {
+        lines.push(Line::from(Span::styled(problem, th.bad())));
+    }
     let rows = app.panel_rows();
     for (i, r) in rows.iter().enumerate() {
         let sel = app.focus == Focus::Panel && i == app.panel;
@@ -539,6 +543,14 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     );
 }
 
+/// An axis label with its unit in brackets (none for plain numbers).
+fn labelled(name: &str, unit: impl AsRef<str>) -> String {
+    match unit.as_ref() {
+        "" => name.to_string(),
+        u => format!("{name} [{u}]"),
+    }
+}
+
 fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let Some(sw) = &app.sweep else {
         f.render_widget(
@@ -583,12 +595,12 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         inner_w,
         inner_h,
         th.ascii,
-        &format!("{} [{}]", sw.vary, unit_label(qv, app.system)),
-        &format!("{} [{}]", sw.report[0], unit_label(qr, app.system)),
+        &labelled(&sw.vary, unit_label(qv, app.system)),
+        &labelled(&sw.report[0], unit_label(qr, app.system)),
     );
     f.render_widget(
         Paragraph::new(lines.into_iter().map(Line::from).collect::<Vec<_>>())
-            .block(th.block(" sweep: first reported value (Enter on 4 to change) ")),
+            .block(th.block(" sweep: first reported value (Enter: change) ")),
         ca,
     );
     let mut tl = Vec::new();
@@ -639,11 +651,20 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             quantity,
             input,
         } => {
-            let r = centered(area, 70, 7);
+            // The reason a value was refused is shown here, whole: the
+            // status line cuts long messages on a narrow terminal.
+            let refused = match &app.status {
+                Some((m, true)) => Some(m.clone()),
+                _ => None,
+            };
+            let r = centered(area, 70, if refused.is_some() { 9 } else { 7 });
             f.render_widget(Clear, r);
             let lines = vec![
                 Line::from(format!("{input}{cursor}")),
-                Line::from(""),
+                match refused {
+                    Some(m) => Line::from(Span::styled(m, th.bad())),
+                    None => Line::from(""),
+                },
                 Line::from(Span::styled(
                     format!("accepts {}", units::accepted(*quantity)),
                     th.dim(),
@@ -675,7 +696,10 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             f.render_widget(Clear, r);
             let lines = vec![
                 Line::from(format!("{input}{cursor}")),
-                Line::from(Span::styled("Enter accepts, Esc cancels", th.dim())),
+                Line::from(Span::styled(
+                    "Enter accepts, Esc cancels, ctrl-u clears",
+                    th.dim(),
+                )),
             ];
             f.render_widget(
                 Paragraph::new(lines).block(th.block(format!(" {title} "))),
@@ -805,7 +829,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 lines.push(Line::from(Span::styled(format!("{l:<22} {v}{c}"), style)));
             }
             lines.push(Line::from(Span::styled(
-                "Tab/Up/Down field, Enter runs, Esc back",
+                "Tab/Up/Down field, Enter runs, Esc back, ctrl-u clears",
                 th.dim(),
             )));
             f.render_widget(Paragraph::new(lines).block(th.block(" sweep set-up ")), r);

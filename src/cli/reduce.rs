@@ -1,0 +1,270 @@
+//! `stationwise reduce` and `stationwise uncertainty`: scans through a workbook.
+
+use super::common::{self, quantity, with_unit};
+use super::{Failure, OutFormat, Units};
+use crate::reduce::{self, Options, Plan, ScanResult};
+use std::io::{IsTerminal, Write};
+use std::path::PathBuf;
+
+/// Reduce every scan of a recorded file; one output row per scan (SI values,
+/// keys are the reported paths), a problems column, and with --uncertainty
+/// the 95 % expanded uncertainty and the top contributor of each value.
+/// A bad cell is a problem of its scan only; exit 2 if any scan had one.
+#[derive(Debug, clap::Args)]
+pub(super) struct Args {
+    /// The workbook (with a channel map).
+    file: PathBuf,
+    /// The scan file: CSV, or tab-separated, with a header row.
+    #[arg(long)]
+    scans: PathBuf,
+    /// Values to report (comma-separated paths); default: every component
+    /// and summary figure.
+    #[arg(long)]
+    report: Option<String>,
+    /// Write here instead of standard output.
+    #[arg(long)]
+    out: Option<PathBuf>,
+    /// Output format (csv or json).
+    #[arg(long, value_enum, default_value_t = OutFormat::Csv)]
+    format: OutFormat,
+    /// Add uncertainty columns (ASME PTC 19.1 approach, 95 %).
+    #[arg(long)]
+    uncertainty: bool,
+    /// Monte Carlo samples per scan to cross-check the uncertainty.
+    #[arg(long, default_value_t = 0)]
+    monte_carlo: usize,
+}
+
+fn report_list(text: &Option<String>, engine: &crate::engine::Engine) -> Vec<String> {
+    match text {
+        Some(t) => t
+            .split(',')
+            .map(|s| s.trim().to_string())
+            .filter(|s| !s.is_empty())
+            .collect(),
+        None => reduce::default_report(engine),
+    }
+}
+
+pub(super) fn run(a: Args) -> Result<u8, Failure> {
+    let (_, engine) = common::open(&a.file)?;
+    let report = report_list(&a.report, &engine);
+    let mut reader = reduce::open_scans(&a.scans).map_err(Failure::bad)?;
+    let opts = Options {
+        uncertainty: a.uncertainty,
+        monte_carlo: a.monte_carlo,
+        batch: 4096,
+    };
+    let out: Box<dyn Write> = match &a.out {
+        Some(p) => Box::new(std::io::BufWriter::new(
+            std::fs::File::create(p)
+                .map_err(|e| Failure::bad(format!("cannot write {}: {e}", p.display())))?,
+        )),
+        None => Box::new(std::io::BufWriter::new(std::io::stdout().lock())),
+    };
+    let len = std::fs::metadata(&a.scans).map(|m| m.len()).unwrap_or(0);
+    let bar = if std::io::stderr().is_terminal() && len > 1 << 20 {
+        let b = indicatif::ProgressBar::new(len);
+        b.set_style(
+            indicatif::ProgressStyle::with_template(
+                "reducing {bar:40} {bytes}/{total_bytes} {eta}",
+            )
+            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        Some(b)
+    } else {
+        None
+    };
+    let mut header = vec!["row".to_string()];
+    header.extend(report.iter().cloned());
+    if a.uncertainty {
+        for r in &report {
+            header.push(format!("{r}.u95"));
+            header.push(format!("{r}.top"));
+        }
+    }
+    if a.monte_carlo > 0 {
+        for r in &report {
+            header.push(format!("{r}.mc_u95"));
+        }
+    }
+    header.push("problems".into());
+    let mut bad_scans = 0u64;
+    let cell = |v: Option<f64>| v.map_or(String::new(), |x| format!("{x}"));
+    let result = match a.format {
+        OutFormat::Json => {
+            let mut w = out;
+            let mut first = true;
+            let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
+            write!(w, "{{\"rows\": [").map_err(io)?;
+            let r = reduce::reduce(
+                &engine,
+                &mut reader,
+                &report,
+                &opts,
+                |s: &ScanResult| {
+                    if !s.problems.is_empty() {
+                        bad_scans += 1;
+                    }
+                    let mut m = serde_json::Map::new();
+                    m.insert("row".into(), s.row.into());
+                    for (k, v) in report.iter().zip(&s.values) {
+                        m.insert(k.clone(), crate::report::cell_json(&(*v).into()));
+                    }
+                    for (k, u) in report.iter().zip(&s.uncertainty) {
+                        m.insert(
+                            format!("{k}.u95"),
+                            crate::report::cell_json(&u.as_ref().map(|u| u.u95).into()),
+                        );
+                        m.insert(
+                            format!("{k}.top"),
+                            u.as_ref()
+                                .map_or(serde_json::Value::Null, |u| u.top().into()),
+                        );
+                    }
+                    for (k, u) in report.iter().zip(&s.monte_carlo) {
+                        m.insert(
+                            format!("{k}.mc_u95"),
+                            crate::report::cell_json(&(*u).into()),
+                        );
+                    }
+                    m.insert("problems".into(), s.problems.join("; ").into());
+                    let sep = if first { "\n" } else { ",\n" };
+                    first = false;
+                    write!(w, "{sep}{}", serde_json::Value::Object(m))
+                },
+                |b| {
+                    if let Some(bar) = &bar {
+                        bar.set_position(b)
+                    }
+                },
+            );
+            writeln!(w, "\n]}}").map_err(io)?;
+            w.flush().map_err(io)?;
+            r
+        }
+        _ => {
+            let mut w = csv::Writer::from_writer(out);
+            w.write_record(&header)
+                .map_err(|e| Failure::bad(e.to_string()))?;
+            let r = reduce::reduce(
+                &engine,
+                &mut reader,
+                &report,
+                &opts,
+                |s: &ScanResult| {
+                    if !s.problems.is_empty() {
+                        bad_scans += 1;
+                    }
+                    let mut rec = vec![s.row.to_string()];
+                    rec.extend(s.values.iter().map(|v| cell(*v)));
+                    if opts.uncertainty {
+                        for k in 0..report.len() {
+                            let u = s.uncertainty.get(k).and_then(|u| u.as_ref());
+                            rec.push(cell(u.map(|u| u.u95)));
+                            rec.push(u.map_or(String::new(), |u| u.top()));
+                        }
+                    }
+                    if opts.monte_carlo > 0 {
+                        for k in 0..report.len() {
+                            rec.push(cell(s.monte_carlo.get(k).copied().flatten()));
+                        }
+                    }
+                    rec.push(s.problems.join("; "));
+                    w.write_record(&rec).map_err(std::io::Error::other)
+                },
+                |b| {
+                    if let Some(bar) = &bar {
+                        bar.set_position(b)
+                    }
+                },
+            );
+            w.flush()
+                .map_err(|e| Failure::bad(format!("cannot write the output: {e}")))?;
+            r
+        }
+    };
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    let (_, rows) = result.map_err(Failure::bad)?;
+    if bad_scans > 0 {
+        eprintln!(
+            "stationwise: {bad_scans} of {rows} scans had problems (see the problems column)"
+        );
+        return Ok(2);
+    }
+    Ok(0)
+}
+
+/// Uncertainty of the workbook's own derived values from the channel map's
+/// uncertainties, at the givens as they are in the file.
+#[derive(Debug, clap::Args)]
+pub(super) struct UncArgs {
+    /// The workbook (with a channel map carrying uncertainties).
+    file: PathBuf,
+    /// Values to report (comma-separated paths); default: every component and summary figure.
+    #[arg(long)]
+    report: Option<String>,
+    /// Monte Carlo samples to cross-check the linearised result.
+    #[arg(long, default_value_t = 0)]
+    monte_carlo: usize,
+    /// How many contributors to list per value.
+    #[arg(long, default_value_t = 3)]
+    contributors: usize,
+    /// Display units.
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    units: Units,
+}
+
+pub(super) fn uncertainty(a: UncArgs) -> Result<u8, Failure> {
+    let (book, engine) = common::open(&a.file)?;
+    let report = report_list(&a.report, &engine);
+    for r in &report {
+        engine.value(r).map_err(Failure::bad)?;
+    }
+    let plan = Plan::without_scans(&book).map_err(Failure::bad)?;
+    let mut eng = engine.clone();
+    let inputs = plan.nominal(&engine);
+    let lin = reduce::linear(&mut eng, &plan, &inputs, &report);
+    let mc = if a.monte_carlo > 0 {
+        reduce::monte_carlo(&mut eng, &plan, &inputs, &report, a.monte_carlo, 1)
+    } else {
+        Vec::new()
+    };
+    let system = a.units.into();
+    for (k, r) in report.iter().enumerate() {
+        let q = quantity(r);
+        let v = engine.value(r).ok().flatten();
+        let Some(v) = v else {
+            println!("{r}: not computed");
+            continue;
+        };
+        match &lin[k] {
+            Some(u) => {
+                let mut line = format!(
+                    "{r} = {} +/- {} (95 %)",
+                    with_unit(v, q, system),
+                    with_unit(u.u95, q, system)
+                );
+                if let Some(Some(m)) = mc.get(k) {
+                    line.push_str(&format!("; Monte Carlo +/- {}", with_unit(*m, q, system)));
+                }
+                println!("{line}");
+                for (l, s) in u
+                    .contributors
+                    .iter()
+                    .take(a.contributors)
+                    .filter(|(_, s)| *s > 0.0)
+                {
+                    println!("    {:>5.1} %  {l}", s * 100.0);
+                }
+            }
+            None => println!(
+                "{r} = {}: uncertainty not computed",
+                with_unit(v, q, system)
+            ),
+        }
+    }
+    Ok(0)
+}
