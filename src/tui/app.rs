@@ -110,6 +110,8 @@ pub enum TextFor {
     SaveAs,
     /// Open a path.
     Open,
+    /// Load a scan file.
+    Scans,
     /// Name of a new station after the given index.
     Insert(usize),
 }
@@ -252,7 +254,26 @@ pub struct App {
     pub sweep: Option<SweepData>,
     /// Set when the app should end.
     pub quit: bool,
+    /// Loaded scans (scan browser).
+    pub scans: Option<ScanBrowser>,
 }
+
+/// Scans loaded for browsing.
+pub struct ScanBrowser {
+    /// The scan file.
+    pub path: PathBuf,
+    /// Its header.
+    pub header: Vec<String>,
+    /// Its rows (at most [`MAX_BROWSE`]).
+    pub rows: Vec<csv::StringRecord>,
+    /// The compiled channel map.
+    pub plan: crate::reduce::Plan,
+    /// The scan shown (index into rows).
+    pub at: usize,
+}
+
+/// Most scans the browser holds in memory (the `reduce` command streams any length).
+pub const MAX_BROWSE: usize = 200_000;
 
 fn stamp(p: &Path) -> Option<(SystemTime, u64)> {
     let m = std::fs::metadata(p).ok()?;
@@ -298,6 +319,7 @@ impl App {
             settings,
             sweep: None,
             quit: false,
+            scans: None,
         };
         if !bad.is_empty() {
             app.error(format!("settings: keys not understood: {}", bad.join("; ")));
@@ -577,6 +599,27 @@ impl App {
             Command::Mode => self.cycle_mode(),
             Command::Setup => self.popups.push(Popup::Setup { sel: 0 }),
             Command::Help => self.popups.push(Popup::Help { scroll: 0 }),
+            Command::Scans => {
+                let guess = self
+                    .path
+                    .as_ref()
+                    .map(|p| {
+                        let stem = p
+                            .file_stem()
+                            .map_or(String::new(), |s| s.to_string_lossy().to_string());
+                        p.with_file_name(format!("{stem}-scans.csv"))
+                            .display()
+                            .to_string()
+                    })
+                    .unwrap_or_default();
+                self.popups.push(Popup::Text {
+                    title: "scan file to browse (CSV or tab-separated)".into(),
+                    input: guess,
+                    purpose: TextFor::Scans,
+                });
+            }
+            Command::ScanPrev => self.step_scan(-1),
+            Command::ScanNext => self.step_scan(1),
         }
     }
 
@@ -1052,12 +1095,41 @@ impl App {
         };
         p.kind = k;
         let label = mode_label(&p.kind);
+        self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
             self.error(crate::present::join(&es));
             return;
         }
         self.commit(nb, &format!("mode: {label}"));
         self.panel = 0;
+    }
+
+    /// Give the process's exit station the measured Tt and pt its new mode
+    /// reads (starting from the values computed now), and drop the ones it
+    /// no longer reads: the engine refuses a measured value that nothing
+    /// reads, and the panel offers no other way to add or remove them.
+    fn sync_measured(&self, nb: &mut Workbook, pi: usize) {
+        let Some(p) = nb.processes.get(pi) else {
+            return;
+        };
+        let (uses_tt, uses_pt) = crate::engine::compute::uses_measured(&p.kind);
+        let to = p.to.clone();
+        let now = self.engine.as_ref().and_then(|e| e.station(&to)).copied();
+        let Some(st) = nb.stations.iter_mut().find(|s| s.name == to) else {
+            return;
+        };
+        if !uses_tt {
+            st.tt = None;
+        } else if st.tt.is_none() {
+            let tt = now.map_or(288.15, |v| v.tt);
+            st.tt = Some(g(&format!("{} K", crate::report::sig(tt, 6))));
+        }
+        if !uses_pt {
+            st.pt = None;
+        } else if st.pt.is_none() {
+            let pt = now.map_or(101_325.0, |v| v.pt);
+            st.pt = Some(g(&format!("{} kPa", crate::report::sig(pt / 1000.0, 6))));
+        }
     }
 
     fn set_kind(&mut self, idx: usize) {
@@ -1082,6 +1154,7 @@ impl App {
             return;
         }
         p.kind = kind;
+        self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
             self.error(crate::present::join(&es));
             return;
@@ -1488,6 +1561,12 @@ impl App {
                     self.save_to(&p);
                 }
             }
+            TextFor::Scans => {
+                let p = PathBuf::from(input.trim());
+                if let Err(e) = self.load_scans(&p) {
+                    self.error(e);
+                }
+            }
             TextFor::Open => {
                 let p = PathBuf::from(input.trim());
                 if let Err(e) = self.open(&p) {
@@ -1495,6 +1574,115 @@ impl App {
                 }
             }
         }
+    }
+
+    /// Load a scan file for browsing and show its first scan.
+    pub fn load_scans(&mut self, path: &Path) -> Result<(), String> {
+        let book = self.book().ok_or("no workbook")?.clone();
+        let mut rdr = crate::reduce::open_scans(path).map_err(|e| e.to_string())?;
+        let header: Vec<String> = rdr
+            .headers()
+            .map_err(|e| e.to_string())?
+            .iter()
+            .map(|s| s.trim().to_string())
+            .collect();
+        let plan = crate::reduce::Plan::new(&book, &header).map_err(|e| e.to_string())?;
+        let mut rows = Vec::new();
+        for r in rdr.records() {
+            if rows.len() >= MAX_BROWSE {
+                break;
+            }
+            rows.push(r.unwrap_or_default());
+        }
+        if rows.is_empty() {
+            return Err(format!("{}: no scans after the header", path.display()));
+        }
+        self.scans = Some(ScanBrowser {
+            path: path.to_path_buf(),
+            header,
+            rows,
+            plan,
+            at: 0,
+        });
+        self.step_scan(0);
+        Ok(())
+    }
+
+    fn step_scan(&mut self, d: isize) {
+        let Some(sb) = self.scans.as_mut() else {
+            self.info("no scans loaded: b loads a scan file");
+            return;
+        };
+        let n = sb.rows.len();
+        sb.at = (sb.at as isize + d).clamp(0, n as isize - 1) as usize;
+        let row = sb.at as u64 + 1;
+        let inputs = sb.plan.inputs(&sb.header, &sb.rows[sb.at], row);
+        let (msg, err) = match (inputs, self.engine.as_mut()) {
+            (Ok(i), Some(e)) => match sb.plan.apply(e, &i) {
+                Ok(()) => {
+                    let probs = e.problems();
+                    if probs.is_empty() {
+                        (format!("scan {row} of {n}"), false)
+                    } else {
+                        (
+                            format!(
+                                "scan {row} of {n}: {}: {}",
+                                probs[0].place, probs[0].message
+                            ),
+                            true,
+                        )
+                    }
+                }
+                Err(m) => (format!("scan {row}: {m}"), true),
+            },
+            (Err(p), _) => (
+                format!("scan {row} of {n} not shown: {}", p.join("; ")),
+                true,
+            ),
+            (Ok(_), None) => return,
+        };
+        self.status = Some((msg, err));
+    }
+
+    /// Linearised uncertainties of the grid's values and the selected
+    /// process's figures, when the workbook's channel map carries
+    /// uncertainties (computed on a copy of the engine).
+    pub fn uncertainties(
+        &self,
+    ) -> Option<std::collections::HashMap<String, crate::reduce::Uncertainty>> {
+        let e = self.engine.as_ref()?;
+        let ch = e.book().channels.as_ref()?;
+        if !ch
+            .map
+            .iter()
+            .any(|c| c.systematic.is_some() || c.random.is_some())
+        {
+            return None;
+        }
+        let plan = crate::reduce::Plan::without_scans(e.book()).ok()?;
+        let mut report = Vec::new();
+        for s in e.stations() {
+            for k in self.columns.keys() {
+                report.push(format!("station.{}.{k}", s.name));
+            }
+        }
+        let p =
+            &e.book().processes[e.producer_of(self.row.min(e.stations().len().saturating_sub(1)))];
+        if let Some(r) = e.process(&p.name) {
+            for (k, _) in &r.figures {
+                report.push(format!("process.{}.{k}", p.name));
+            }
+        }
+        let mut eng = e.clone();
+        let inputs = plan.nominal(e);
+        let unc = crate::reduce::linear(&mut eng, &plan, &inputs, &report);
+        Some(
+            report
+                .into_iter()
+                .zip(unc)
+                .filter_map(|(r, u)| u.map(|u| (r, u)))
+                .collect(),
+        )
     }
 
     /// Rows of the set-up popup.

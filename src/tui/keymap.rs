@@ -58,6 +58,12 @@ pub enum Command {
     Setup,
     /// Help overlay.
     Help,
+    /// Load a scan file into the scan browser.
+    Scans,
+    /// Previous scan.
+    ScanPrev,
+    /// Next scan.
+    ScanNext,
     /// Quit.
     Quit,
 }
@@ -177,6 +183,19 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
         "ambient block and gas model",
         &["g"],
     ),
+    (
+        Command::Scans,
+        "load-scans",
+        "load a recorded scan file (CSV/TSV) through the channel map",
+        &["b"],
+    ),
+    (
+        Command::ScanPrev,
+        "previous-scan",
+        "show the previous scan",
+        &["["],
+    ),
+    (Command::ScanNext, "next-scan", "show the next scan", &["]"]),
     (Command::Help, "help", "this help", &["?", "F1"]),
     (
         Command::Quit,

@@ -137,13 +137,16 @@ fn title_line(app: &App) -> Line<'static> {
         units::UnitSystem::Si => "SI",
         units::UnitSystem::Us => "US",
     };
+    let scan = app.scans.as_ref().map_or(String::new(), |sb| {
+        format!(" scan {}/{}", sb.at + 1, sb.rows.len())
+    });
     Line::from(vec![
         Span::styled(
             " stationwise ",
             Style::default().add_modifier(Modifier::REVERSED),
         ),
         Span::raw(format!(
-            " {name}{star}  view:{view}  {units}  cols:{}  ? help",
+            " {name}{star}{scan}  view:{view}  {units}  cols:{}  ? help",
             app.columns.name()
         )),
     ])
@@ -187,8 +190,16 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let [ga, lower] =
         Layout::vertical([Constraint::Length(grid_h), Constraint::Min(3)]).areas(area);
     let keys = app.columns.keys();
+    let unc = app.uncertainties();
+    let pm = if th.ascii { "+/-" } else { "\u{b1}" };
     let inner_w = ga.width.saturating_sub(2) as usize;
     let fit_cols = ((inner_w.saturating_sub(NAME_W + VIA_W + 2)) / CELL_W).max(1);
+    let fit_cols = if unc.is_some() {
+        (fit_cols - 1).max(1)
+    } else {
+        fit_cols
+    };
+    let sel_key = keys[app.col.min(keys.len() - 1)];
     let first = if app.col >= fit_cols {
         app.col + 1 - fit_cols
     } else {
@@ -204,16 +215,18 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let mut unit_row = " ".repeat(NAME_W + VIA_W);
     for k in &shown {
         let (label, q) = key_meta(k);
-        head.push_str(&fit(label, CELL_W));
         let u = unit_label(q, app.system);
-        unit_row.push_str(&fit(
-            &if u.is_empty() {
-                String::new()
-            } else {
-                format!("[{u}]")
-            },
-            CELL_W,
-        ));
+        let u = if u.is_empty() {
+            String::new()
+        } else {
+            format!("[{u}]")
+        };
+        head.push_str(&fit(label, CELL_W));
+        unit_row.push_str(&fit(&u, CELL_W));
+        if unc.is_some() && *k == sel_key {
+            head.push_str(&fit(&format!("{pm}{label}"), CELL_W));
+            unit_row.push_str(&fit(&format!("{u} 95%"), CELL_W));
+        }
     }
     lines.push(Line::from(Span::styled(
         head,
@@ -262,6 +275,18 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
                 style = style.add_modifier(Modifier::UNDERLINED);
             }
             spans.push(Span::styled(fit(&text, CELL_W), style));
+            if let Some(u) = unc.as_ref().filter(|_| *k == sel_key) {
+                let t = u
+                    .get(&format!("station.{}.{k}", s.name))
+                    .map_or("-".to_string(), |u| {
+                        crate::report::sig(
+                            present::shown(u.u95, q, app.system)
+                                - present::shown(0.0, q, app.system),
+                            3,
+                        )
+                    });
+                spans.push(Span::styled(fit(&t, CELL_W), th.dim()));
+            }
         }
         lines.push(Line::from(spans));
     }
@@ -278,8 +303,12 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     f.render_widget(Paragraph::new(lines).block(th.block(title)), ga);
     let [pa, sa] =
         Layout::horizontal([Constraint::Percentage(62), Constraint::Percentage(38)]).areas(lower);
-    panel(f, app, th, pa);
-    summary(f, app, th, sa);
+    panel(f, app, th, pa, unc.as_ref());
+    let sel_path = e
+        .stations()
+        .get(app.row)
+        .map(|s| format!("station.{}.{sel_key}", s.name));
+    summary(f, app, th, sa, unc.as_ref().zip(sel_path));
 }
 
 fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
@@ -299,7 +328,9 @@ fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
     ))
 }
 
-fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+type UncMap = std::collections::HashMap<String, crate::reduce::Uncertainty>;
+
+fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>) {
     let Some(e) = app.engine.as_ref() else {
         return;
     };
@@ -366,8 +397,18 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     if let Some(r) = e.process(&p.name) {
         for (k, v) in &r.figures {
             let (label, q) = figure_meta(k);
+            let pm = unc
+                .and_then(|m| m.get(&format!("process.{}.{k}", p.name)))
+                .map_or(String::new(), |u| {
+                    let zero = present::shown(0.0, q, app.system);
+                    format!(
+                        " {} {}",
+                        if th.ascii { "+/-" } else { "\u{b1}" },
+                        crate::report::sig(present::shown(u.u95, q, app.system) - zero, 3)
+                    )
+                });
             lines.push(Line::from(format!(
-                "  {label:<22} {}",
+                "  {label:<22} {}{pm}",
                 with_unit(*v, q, app.system)
             )));
         }
@@ -391,11 +432,31 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     );
 }
 
-fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
+fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMap, String)>) {
     let Some(e) = app.engine.as_ref() else {
         return;
     };
     let mut lines = Vec::new();
+    if let Some((m, path)) = unc {
+        match m.get(&path) {
+            Some(u) => {
+                let q = present::quantity(&path);
+                let zero = present::shown(0.0, q, app.system);
+                lines.push(Line::from(Span::styled(
+                    format!(
+                        "{path} {} {} (95 %)",
+                        if th.ascii { "+/-" } else { "\u{b1}" },
+                        crate::report::sig(present::shown(u.u95, q, app.system) - zero, 3)
+                    ),
+                    Style::default().add_modifier(Modifier::BOLD),
+                )));
+                for (l, share) in u.contributors.iter().take(3).filter(|(_, s)| *s > 0.0) {
+                    lines.push(Line::from(format!(" {:>3.0} % {l}", share * 100.0)));
+                }
+            }
+            None => lines.push(Line::from(format!("{path}: no uncertainty"))),
+        }
+    }
     for (_, label, v, q) in summary_entries(e) {
         let label: String = label.chars().take(15).collect();
         lines.push(Line::from(format!(
