@@ -20,6 +20,10 @@ pub(super) struct Args {
     /// Display units for text and CSV.
     #[arg(long, value_enum, default_value_t = Units::Si)]
     units: Units,
+    /// Store the derived results in the file (sets `keep_results`), so a
+    /// version-control diff shows result changes and `check` can compare.
+    #[arg(long)]
+    store_results: bool,
 }
 
 /// JSON key of a summary figure (SI unit in the name).
@@ -186,7 +190,13 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
 }
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
-    let (_, engine) = common::open(&a.file)?;
+    let (mut book, engine) = common::open(&a.file)?;
+    if a.store_results {
+        book.keep_results = true;
+        crate::format::refresh_results(&mut book, &engine);
+        crate::format::save(&a.file, &book)
+            .map_err(|e| Failure::bad(format!("cannot write {}: {e}", a.file.display())))?;
+    }
     let system: UnitSystem = a.units.into();
     let mut out = std::io::stdout().lock();
     let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
