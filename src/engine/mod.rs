@@ -99,6 +99,7 @@ struct Graph {
     deps: Vec<Vec<usize>>,
     shaft_of: Vec<Option<usize>>,
     uses_ambient: Vec<bool>,
+    to_index: Vec<usize>,
 }
 
 /// A goal's outcome.
@@ -399,6 +400,10 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         return Err(errors);
     }
     g.producer = producer.into_iter().map(|p| p.unwrap_or(0)).collect();
+    g.to_index = outputs
+        .iter()
+        .map(|o| o.first().copied().unwrap_or(0))
+        .collect();
     g.deps = (0..n)
         .map(|i| {
             let mut d: Vec<usize> = g.inputs[i].iter().map(|&s| g.producer[s]).collect();
@@ -603,7 +608,7 @@ impl Engine {
         let p = self.graph.producer[s];
         match self.nodes[p].as_ref() {
             Some(NodeOut::Done(r)) => {
-                if self.book.processes[p].to == self.book.stations[s].name {
+                if self.graph.to_index[p] == s {
                     Ok(&r.out)
                 } else {
                     r.out2
@@ -686,7 +691,7 @@ impl Engine {
             shaft_speed,
             reference: self.reference(),
         };
-        let to = &self.book.stations[self.graph.station_index[&p.to]];
+        let to = &self.book.stations[self.graph.to_index[i]];
         let to2 = match &p.kind {
             Kind::Split(s) => self
                 .graph
@@ -749,9 +754,10 @@ impl Engine {
         let (t_ref, p_ref) = self.reference();
         let corr = inlet.map(|(tt, pt)| ((tt / t_ref), (pt / p_ref)));
         if let Some((theta, delta)) = corr
-            && fuel > 0.0 {
-                s.fuel_corrected = Some(fuel / (delta * theta.sqrt()));
-            }
+            && fuel > 0.0
+        {
+            s.fuel_corrected = Some(fuel / (delta * theta.sqrt()));
+        }
         if nozzles > 0 {
             let net = gross - ram;
             s.thrust_gross = Some(gross);

@@ -84,7 +84,7 @@ pub fn compress<G: Thermo + ?Sized>(
         Efficiency::Isentropic(_) => invert_h(gas, s1.h + (h_ideal - s1.h) / eta, t_ideal)?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi + rl / eta, t_ideal)?,
     };
-    measured_compression(gas, tt_in, tt_out, pr)
+    compression_stage(gas, tt_in, tt_out, pr, Some(t_ideal))
 }
 
 /// Efficiencies and work of a compression from measured exit temperature.
@@ -96,12 +96,25 @@ pub fn measured_compression<G: Thermo + ?Sized>(
     tt_out: f64,
     pr: f64,
 ) -> Result<Stage, FlowError> {
+    compression_stage(gas, tt_in, tt_out, pr, None)
+}
+
+fn compression_stage<G: Thermo + ?Sized>(
+    gas: &G,
+    tt_in: f64,
+    tt_out: f64,
+    pr: f64,
+    t_ideal: Option<f64>,
+) -> Result<Stage, FlowError> {
     let pr = check_ratio(pr)?;
     let s1 = gas.state(tt_in)?;
     let s2 = gas.state(tt_out)?;
     let r = gas.r();
     let rl = r * pr.ln();
-    let t_ideal = invert_phi(gas, s1.phi + rl, tt_in * pr.powf(r / s1.cp))?;
+    let t_ideal = match t_ideal {
+        Some(t) => t,
+        None => invert_phi(gas, s1.phi + rl, tt_in * pr.powf(r / s1.cp))?,
+    };
     let h_ideal = gas.h(t_ideal)?;
     let dh = s2.h - s1.h;
     if dh <= 0.0 && pr > 1.0 {
@@ -144,7 +157,7 @@ pub fn expand<G: Thermo + ?Sized>(
         Efficiency::Isentropic(_) => invert_h(gas, s1.h - eta * (s1.h - h_ideal), t_ideal)?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi - eta * rl, t_ideal)?,
     };
-    measured_expansion(gas, tt_in, tt_out, pr)
+    expansion_stage(gas, tt_in, tt_out, pr, Some(t_ideal))
 }
 
 /// Efficiencies and work of an expansion from measured exit temperature.
@@ -154,12 +167,25 @@ pub fn measured_expansion<G: Thermo + ?Sized>(
     tt_out: f64,
     pr: f64,
 ) -> Result<Stage, FlowError> {
+    expansion_stage(gas, tt_in, tt_out, pr, None)
+}
+
+fn expansion_stage<G: Thermo + ?Sized>(
+    gas: &G,
+    tt_in: f64,
+    tt_out: f64,
+    pr: f64,
+    t_ideal: Option<f64>,
+) -> Result<Stage, FlowError> {
     let pr = check_ratio(pr)?;
     let s1 = gas.state(tt_in)?;
     let s2 = gas.state(tt_out)?;
     let r = gas.r();
     let rl = r * pr.ln();
-    let t_ideal = invert_phi(gas, s1.phi - rl, tt_in * pr.powf(-r / s1.cp))?;
+    let t_ideal = match t_ideal {
+        Some(t) => t,
+        None => invert_phi(gas, s1.phi - rl, tt_in * pr.powf(-r / s1.cp))?,
+    };
     let h_ideal = gas.h(t_ideal)?;
     let dh = s1.h - s2.h;
     if dh <= 0.0 && pr > 1.0 {
@@ -207,9 +233,8 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
             value: work,
             why: "it takes the exit total temperature below the gas data range",
         })?;
-    let s2 = gas.state(tt_out)?;
     let r = gas.r();
-    let rl = match eff {
+    let (rl, t_ideal) = match eff {
         Efficiency::Isentropic(_) => {
             let h_ideal = s1.h - work / eta;
             let t_ideal = invert_h(gas, h_ideal, tt_out).map_err(|_| FlowError::BadInput {
@@ -217,12 +242,12 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
                 value: work,
                 why: "the ideal expansion leaves the gas data range: too much work for this efficiency",
             })?;
-            s1.phi - gas.phi(t_ideal)?
+            (s1.phi - gas.phi(t_ideal)?, Some(t_ideal))
         }
-        Efficiency::Polytropic(_) => (s1.phi - s2.phi) / eta,
+        Efficiency::Polytropic(_) => ((s1.phi - gas.phi(tt_out)?) / eta, None),
     };
     let pr = (rl / r).exp();
-    measured_expansion(gas, tt_in, tt_out, pr)
+    expansion_stage(gas, tt_in, tt_out, pr, t_ideal)
 }
 
 /// Compression that absorbs `work` J/kg at efficiency `eff`.

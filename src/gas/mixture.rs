@@ -94,12 +94,16 @@ pub struct Mixture {
     poly: Polynomial,
     r: f64,
     h_ref: f64,
-    label: String,
+    label: std::borrow::Cow<'static, str>,
 }
 
 impl Mixture {
     /// A mixture from a mass-specific polynomial and its gas constant.
-    pub fn from_polynomial(poly: Polynomial, r: f64, label: impl Into<String>) -> Mixture {
+    pub fn from_polynomial(
+        poly: Polynomial,
+        r: f64,
+        label: impl Into<std::borrow::Cow<'static, str>>,
+    ) -> Mixture {
         let h_ref = match poly.coeffs(super::T_REFERENCE) {
             Ok(a) => Polynomial::h_of(a, super::T_REFERENCE, super::T_REFERENCE.ln()),
             Err(_) => 0.0,
@@ -146,7 +150,10 @@ impl Thermo for Mixture {
     }
     #[inline]
     fn h(&self, t: f64) -> Result<f64, GasError> {
-        Ok(Polynomial::h_of(self.poly.coeffs(t)?, t, t.ln()))
+        let a = self.poly.coeffs(t)?;
+        // The logarithm only enters through a2, zero for 7-coefficient data.
+        let ln_t = if a[1] == 0.0 { 0.0 } else { t.ln() };
+        Ok(Polynomial::h_of(a, t, ln_t))
     }
     #[inline]
     fn phi(&self, t: f64) -> Result<f64, GasError> {

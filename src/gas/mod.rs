@@ -299,9 +299,38 @@ impl GasModel {
                 Some(h) if c.far > 0.0 => Gas::Perfect(*h),
                 _ => Gas::Perfect(*cold),
             },
-            GasModel::Thermal => Gas::Thermal(c.mixture()),
+            GasModel::Thermal => Gas::Thermal(cached_mixture(c)),
         })
     }
+}
+
+/// Mixtures are rebuilt for the same few compositions on every recompute;
+/// a small per-thread cache keyed by the composition's bits saves the
+/// polynomial build (the cache can only return the same mixture the
+/// composition would build).
+fn cached_mixture(c: &Composition) -> Mixture {
+    use std::cell::RefCell;
+    type Key = (u64, u64, u64);
+    thread_local! {
+        static CACHE: RefCell<Vec<(Key, Mixture)>> = const { RefCell::new(Vec::new()) };
+    }
+    let key = (c.far.to_bits(), c.war.to_bits(), c.fuel.hc().to_bits());
+    CACHE.with(|cell| {
+        let mut cache = cell.borrow_mut();
+        if let Some(pos) = cache.iter().position(|(k, _)| *k == key) {
+            let hit = cache[pos].1.clone();
+            // Keep recent entries at the front.
+            if pos > 0 {
+                let e = cache.remove(pos);
+                cache.insert(0, e);
+            }
+            return hit;
+        }
+        let m = c.mixture();
+        cache.insert(0, (key, m.clone()));
+        cache.truncate(16);
+        m
+    })
 }
 
 /// Find the temperature with a given value of a monotonic-increasing
@@ -327,23 +356,18 @@ fn invert<G: Thermo + ?Sized>(
     f: impl Fn(&G, f64) -> Result<(f64, f64), GasError>,
 ) -> Result<f64, GasError> {
     let (min, max) = gas.range();
-    let (lo_t, hi_t) = (min.max(1e-6), max.min(1e7));
-    let (f_lo, _) = f(gas, lo_t)?;
-    let (f_hi, _) = f(gas, hi_t)?;
-    let model = match gas.range().1.is_finite() {
+    let (lo0, hi0) = (min.max(1e-6), max.min(1e7));
+    let model = match max.is_finite() {
         true => "thermally perfect",
         false => "calorically perfect",
     };
-    if !target.is_finite() || target < f_lo || target > f_hi {
-        // The required temperature lies outside the model's range.
-        let t = if target.is_finite() && target < f_lo {
-            lo_t * 0.999
-        } else {
-            hi_t * 1.001
-        };
-        return Err(GasError::OutOfRange { t, min, max, model });
+    let out_of_range = |t: f64| GasError::OutOfRange { t, min, max, model };
+    if !target.is_finite() {
+        return Err(out_of_range(f64::NAN));
     }
-    let (mut lo, mut hi) = (lo_t, hi_t);
+    // Safeguarded Newton on a rising function; the ends of the range are
+    // only evaluated if the iterate runs into one of them.
+    let (mut lo, mut hi) = (lo0, hi0);
     let mut t = if guess.is_finite() && guess > lo && guess < hi {
         guess
     } else {
@@ -362,6 +386,17 @@ fn invert<G: Thermo + ?Sized>(
             next = 0.5 * (lo + hi);
         }
         if (next - t).abs() <= 1e-14 * t || hi - lo <= 1e-14 * t {
+            let near = |e: f64| (next - e).abs() <= 1e-9 * e;
+            if near(lo0) || near(hi0) {
+                let (f_lo, _) = f(gas, lo0)?;
+                let (f_hi, _) = f(gas, hi0)?;
+                if target < f_lo {
+                    return Err(out_of_range(lo0 * 0.999));
+                }
+                if target > f_hi {
+                    return Err(out_of_range(hi0 * 1.001));
+                }
+            }
             return Ok(next);
         }
         t = next;

@@ -107,7 +107,7 @@ impl MixtureBuilder {
     }
 
     /// The mixture: mass-specific polynomial and gas constant.
-    pub fn build(&self, label: impl Into<String>) -> Mixture {
+    pub fn build(&self, label: impl Into<std::borrow::Cow<'static, str>>) -> Mixture {
         let mass = self.mass();
         let d0 = Species::N2.data();
         let mut poly = Polynomial {
@@ -277,9 +277,9 @@ impl Composition {
     /// [`check`]: Composition::check
     pub fn mixture(&self) -> Mixture {
         let label = match (self.far > 0.0, self.war > 0.0) {
-            (false, false) => "dry air".to_string(),
-            (false, true) => format!("humid air war {:.5}", self.war),
-            (true, _) => format!("products far {:.5}", self.far),
+            (false, false) => "dry air",
+            (false, true) => "humid air",
+            (true, _) => "combustion products",
         };
         self.builder().build(label)
     }

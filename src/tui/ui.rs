@@ -116,6 +116,28 @@ pub fn draw(f: &mut Frame, app: &App) {
     for p in &app.popups {
         popup(f, app, &th, p, body);
     }
+    if th.ascii {
+        ascii_only(f.buffer_mut());
+    }
+}
+
+/// Plain ASCII drawing promises ASCII on screen: whatever text from the
+/// engine or the workbook still has other characters (labels, explanations,
+/// names) is replaced cell by cell.
+fn ascii_only(b: &mut ratatui::buffer::Buffer) {
+    for c in b.content.iter_mut() {
+        if !c.symbol().is_ascii() {
+            let s = match c.symbol() {
+                "\u{b7}" | "\u{2022}" | "\u{25cf}" => "*",
+                "\u{2013}" | "\u{2014}" | "\u{2212}" | "\u{2500}" => "-",
+                "\u{2502}" => "|",
+                "\u{b1}" => "~",
+                "\u{b0}" => "o",
+                _ => "?",
+            };
+            c.set_symbol(s);
+        }
+    }
 }
 
 fn title_line(app: &App) -> Line<'static> {
@@ -172,6 +194,12 @@ fn fit(s: &str, w: usize) -> String {
     }
 }
 
+/// A grid cell: right-aligned in CELL_W with at least one space before it,
+/// so long labels or values never run into the column to their left.
+fn cell(s: &str) -> String {
+    format!(" {}", fit(s, CELL_W - 1))
+}
+
 fn fit_left(s: &str, w: usize) -> String {
     let n = s.chars().count();
     if n > w {
@@ -215,17 +243,20 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let mut unit_row = " ".repeat(NAME_W + VIA_W);
     for k in &shown {
         let (label, q) = key_meta(k);
+        // Plain ASCII drawing: a label with other characters ("W√Tt/(A p)")
+        // falls back to its key.
+        let label = if th.ascii && !label.is_ascii() { k } else { label };
         let u = unit_label(q, app.system);
         let u = if u.is_empty() {
             String::new()
         } else {
             format!("[{u}]")
         };
-        head.push_str(&fit(label, CELL_W));
-        unit_row.push_str(&fit(&u, CELL_W));
+        head.push_str(&cell(label));
+        unit_row.push_str(&cell(&u));
         if unc.is_some() && *k == sel_key {
-            head.push_str(&fit(&format!("{pm}{label}"), CELL_W));
-            unit_row.push_str(&fit(&format!("{u} 95%"), CELL_W));
+            head.push_str(&cell(&format!("{pm}{label}")));
+            unit_row.push_str(&cell(&format!("{u} 95%")));
         }
     }
     lines.push(Line::from(Span::styled(
@@ -274,7 +305,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             } else if sel {
                 style = style.add_modifier(Modifier::UNDERLINED);
             }
-            spans.push(Span::styled(fit(&text, CELL_W), style));
+            spans.push(Span::styled(cell(&text), style));
             if let Some(u) = unc.as_ref().filter(|_| *k == sel_key) {
                 let t = u
                     .get(&format!("station.{}.{k}", s.name))
@@ -285,7 +316,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
                             3,
                         )
                     });
-                spans.push(Span::styled(fit(&t, CELL_W), th.dim()));
+                spans.push(Span::styled(cell(&t), th.dim()));
             }
         }
         lines.push(Line::from(spans));
@@ -457,12 +488,29 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
             None => lines.push(Line::from(format!("{path}: no uncertainty"))),
         }
     }
-    for (_, label, v, q) in summary_entries(e) {
-        let label: String = label.chars().take(15).collect();
-        lines.push(Line::from(format!(
-            "{label:<15} {}",
-            with_unit(v, q, app.system)
-        )));
+    // Values whole; the labels give way on a narrow terminal.
+    let inner = area.width.saturating_sub(2) as usize;
+    let entries: Vec<(String, String)> = summary_entries(e)
+        .into_iter()
+        .map(|(_, label, v, q)| (label.to_string(), with_unit(v, q, app.system)))
+        .collect();
+    let widest = entries.iter().map(|(_, v)| v.chars().count()).max().unwrap_or(0);
+    let longest = entries.iter().map(|(l, _)| l.chars().count()).max().unwrap_or(0);
+    let lw = longest.min(inner.saturating_sub(widest + 1));
+    let columns = lw >= 15.min(longest);
+    for (label, value) in entries {
+        if columns {
+            lines.push(Line::from(format!("{} {value}", fit_left(&label, lw))));
+        } else {
+            // Too narrow for two columns: values flush right, each label
+            // as long as its own line allows.
+            let lw = inner.saturating_sub(value.chars().count() + 1).max(4);
+            lines.push(Line::from(format!(
+                "{} {value:>w$}",
+                fit_left(&label, lw),
+                w = inner.saturating_sub(lw + 1)
+            )));
+        }
     }
     for s in &e.book().shafts {
         if let Some(b) = e.shaft(&s.name) {
@@ -520,7 +568,7 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     };
     f.render_widget(
         Paragraph::new(body)
-            .block(th.block(" how each value was obtained (Up/Down: previous/next station) "))
+            .block(th.block(" how each value was obtained (Up/Down: other stations) "))
             .wrap(Wrap { trim: false }),
         ra,
     );
