@@ -494,8 +494,19 @@ impl App {
             (Kind::Heating(Heating::ExitTemperature(_)), "tt") => Some("exit_tt"),
             _ => None,
         };
-        let givens = b.givens();
-        if givens.iter().any(|(g, ..)| *g == own) {
+        // The station's own givens, read off the station (the same ones
+        // `Workbook::givens` lists, without copying the workbook per cell:
+        // that made one frame of a 50-station grid cost milliseconds).
+        let own_given = match key {
+            "tt" => st.tt.is_some(),
+            "pt" => st.pt.is_some(),
+            "mach" => matches!(st.statics, Some(Statics::Mach(_))),
+            "p" => matches!(st.statics, Some(Statics::Pressure(_))),
+            "v" => matches!(st.statics, Some(Statics::Velocity(_))),
+            "area" => matches!(st.statics, Some(Statics::Area(_))),
+            _ => false,
+        };
+        if own_given {
             return Some(own);
         }
         proc_key.map(|k| format!("process.{}.{k}", p.name))

@@ -245,7 +245,11 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         let (label, q) = key_meta(k);
         // Plain ASCII drawing: a label with other characters ("W√Tt/(A p)")
         // falls back to its key.
-        let label = if th.ascii && !label.is_ascii() { k } else { label };
+        let label = if th.ascii && !label.is_ascii() {
+            k
+        } else {
+            label
+        };
         let u = unit_label(q, app.system);
         let u = if u.is_empty() {
             String::new()
@@ -494,8 +498,16 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
         .into_iter()
         .map(|(_, label, v, q)| (label.to_string(), with_unit(v, q, app.system)))
         .collect();
-    let widest = entries.iter().map(|(_, v)| v.chars().count()).max().unwrap_or(0);
-    let longest = entries.iter().map(|(l, _)| l.chars().count()).max().unwrap_or(0);
+    let widest = entries
+        .iter()
+        .map(|(_, v)| v.chars().count())
+        .max()
+        .unwrap_or(0);
+    let longest = entries
+        .iter()
+        .map(|(l, _)| l.chars().count())
+        .max()
+        .unwrap_or(0);
     let lw = longest.min(inner.saturating_sub(widest + 1));
     let columns = lw >= 15.min(longest);
     for (label, value) in entries {
