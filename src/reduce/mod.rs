@@ -286,7 +286,16 @@ impl Plan {
         let mut mean = |c: &PlanChannel| -> Option<f64> {
             let mut acc = 0.0;
             for (&i, w) in c.cols.iter().zip(&c.weights) {
-                let cell = record.get(i).unwrap_or("").trim();
+                let Some(cell) = record.get(i) else {
+                    problems.push(format!(
+                        "row {row}, column {}: missing (the row has {} of the header's {} fields)",
+                        header.get(i).map_or("?", |s| s.as_str()),
+                        record.len(),
+                        header.len()
+                    ));
+                    return None;
+                };
+                let cell = cell.trim();
                 match cell.parse::<f64>() {
                     Ok(v) if v.is_finite() => acc += w * v,
                     _ => {
@@ -307,11 +316,12 @@ impl Plan {
         }
         let baro = baro.flatten();
         if let Some(b) = baro
-            && b <= 0.0 {
-                return Err(vec![format!(
-                    "row {row}: barometer {b:.1} Pa is not positive"
-                )]);
-            }
+            && b <= 0.0
+        {
+            return Err(vec![format!(
+                "row {row}: barometer {b:.1} Pa is not positive"
+            )]);
+        }
         let readings: Vec<f64> = readings
             .into_iter()
             .map(|r| r.unwrap_or(f64::NAN))
@@ -429,10 +439,11 @@ pub struct Uncertainty {
 }
 
 impl Uncertainty {
-    /// "station.2.tt 71 %".
+    /// "station.2.tt 71 %"; empty when nothing contributes.
     pub fn top(&self) -> String {
         self.contributors
             .first()
+            .filter(|(_, s)| *s > 0.0)
             .map_or(String::new(), |(l, s)| format!("{l} {:.0} %", s * 100.0))
     }
 }
