@@ -21,8 +21,32 @@ use std::time::{Duration, SystemTime};
 
 static DIRS: AtomicUsize = AtomicUsize::new(0);
 
+/// A copy of the turbojet demo in a folder of its own, removed on drop.
+struct TempSheet(PathBuf);
+
+impl std::ops::Deref for TempSheet {
+    type Target = Path;
+    fn deref(&self) -> &Path {
+        &self.0
+    }
+}
+
+impl AsRef<Path> for TempSheet {
+    fn as_ref(&self) -> &Path {
+        &self.0
+    }
+}
+
+impl Drop for TempSheet {
+    fn drop(&mut self) {
+        if let Some(dir) = self.0.parent() {
+            let _ = std::fs::remove_dir_all(dir);
+        }
+    }
+}
+
 /// A fresh folder with a copy of the turbojet demo; returns the copy.
-fn sheet_copy() -> PathBuf {
+fn sheet_copy() -> TempSheet {
     let n = DIRS.fetch_add(1, Ordering::SeqCst);
     let dir = std::env::temp_dir().join(format!("stationwise-tui-{}-{n}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
@@ -30,12 +54,12 @@ fn sheet_copy() -> PathBuf {
     let path = dir.join("turbojet.ron");
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("sheets/turbojet.ron");
     std::fs::copy(src, &path).unwrap();
-    path
+    TempSheet(path)
 }
 
 /// The app on a fresh copy of the turbojet, with the "opened PATH" status
 /// cleared so the screen does not depend on the temporary folder's name.
-fn open_with(settings: Settings) -> (App, PathBuf) {
+fn open_with(settings: Settings) -> (App, TempSheet) {
     let path = sheet_copy();
     let mut app = App::new(settings);
     app.open(&path).unwrap();
@@ -44,7 +68,7 @@ fn open_with(settings: Settings) -> (App, PathBuf) {
     (app, path)
 }
 
-fn open() -> (App, PathBuf) {
+fn open() -> (App, TempSheet) {
     open_with(Settings::default())
 }
 
