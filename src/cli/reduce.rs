@@ -91,53 +91,80 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     header.push("problems".into());
     let mut bad_scans = 0u64;
     let cell = |v: Option<f64>| v.map_or(String::new(), |x| format!("{x}"));
+    let n = report.len();
+    // Rows are formatted on the worker threads; the sink only writes.
+    let csv_row = |s: &ScanResult| -> (bool, Vec<String>) {
+        let mut rec = Vec::with_capacity(2 + 3 * n);
+        rec.push(s.row.to_string());
+        rec.extend(s.values.iter().map(|v| cell(*v)));
+        if opts.uncertainty {
+            for k in 0..n {
+                let u = s.uncertainty.get(k).and_then(|u| u.as_ref());
+                rec.push(cell(u.map(|u| u.u95)));
+                rec.push(u.map_or(String::new(), |u| u.top()));
+            }
+        }
+        if opts.monte_carlo > 0 {
+            for k in 0..n {
+                rec.push(cell(s.monte_carlo.get(k).copied().flatten()));
+            }
+        }
+        rec.push(s.problems.join("; "));
+        (!s.problems.is_empty(), rec)
+    };
+    let json_row = |s: &ScanResult| -> (bool, String) {
+        let mut m = serde_json::Map::new();
+        m.insert("row".into(), s.row.into());
+        for (k, v) in report.iter().zip(&s.values) {
+            m.insert(k.clone(), crate::report::cell_json(&(*v).into()));
+        }
+        for (k, u) in report.iter().zip(&s.uncertainty) {
+            m.insert(
+                format!("{k}.u95"),
+                crate::report::cell_json(&u.as_ref().map(|u| u.u95).into()),
+            );
+            m.insert(
+                format!("{k}.top"),
+                u.as_ref()
+                    .map_or(serde_json::Value::Null, |u| u.top().into()),
+            );
+        }
+        for (k, u) in report.iter().zip(&s.monte_carlo) {
+            m.insert(
+                format!("{k}.mc_u95"),
+                crate::report::cell_json(&(*u).into()),
+            );
+        }
+        m.insert("problems".into(), s.problems.join("; ").into());
+        (
+            !s.problems.is_empty(),
+            serde_json::Value::Object(m).to_string(),
+        )
+    };
+    let progress = |b| {
+        if let Some(bar) = &bar {
+            bar.set_position(b)
+        }
+    };
     let result = match a.format {
         OutFormat::Json => {
             let mut w = out;
             let mut first = true;
             let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
             write!(w, "{{\"rows\": [").map_err(io)?;
-            let r = reduce::reduce(
+            let r = reduce::reduce_with(
                 &engine,
                 &mut reader,
                 &report,
                 &opts,
-                |s: &ScanResult| {
-                    if !s.problems.is_empty() {
-                        bad_scans += 1;
-                    }
-                    let mut m = serde_json::Map::new();
-                    m.insert("row".into(), s.row.into());
-                    for (k, v) in report.iter().zip(&s.values) {
-                        m.insert(k.clone(), crate::report::cell_json(&(*v).into()));
-                    }
-                    for (k, u) in report.iter().zip(&s.uncertainty) {
-                        m.insert(
-                            format!("{k}.u95"),
-                            crate::report::cell_json(&u.as_ref().map(|u| u.u95).into()),
-                        );
-                        m.insert(
-                            format!("{k}.top"),
-                            u.as_ref()
-                                .map_or(serde_json::Value::Null, |u| u.top().into()),
-                        );
-                    }
-                    for (k, u) in report.iter().zip(&s.monte_carlo) {
-                        m.insert(
-                            format!("{k}.mc_u95"),
-                            crate::report::cell_json(&(*u).into()),
-                        );
-                    }
-                    m.insert("problems".into(), s.problems.join("; ").into());
+                json_row,
+                |(bad, text)| {
+                    bad_scans += u64::from(bad);
                     let sep = if first { "\n" } else { ",\n" };
                     first = false;
-                    write!(w, "{sep}{}", serde_json::Value::Object(m))
+                    write!(w, "{sep}{text}")
                 },
-                |b| {
-                    if let Some(bar) = &bar {
-                        bar.set_position(b)
-                    }
-                },
+                progress,
             );
             writeln!(w, "\n]}}").map_err(io)?;
             w.flush().map_err(io)?;
@@ -147,37 +174,17 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             let mut w = csv::Writer::from_writer(out);
             w.write_record(&header)
                 .map_err(|e| Failure::bad(e.to_string()))?;
-            let r = reduce::reduce(
+            let r = reduce::reduce_with(
                 &engine,
                 &mut reader,
                 &report,
                 &opts,
-                |s: &ScanResult| {
-                    if !s.problems.is_empty() {
-                        bad_scans += 1;
-                    }
-                    let mut rec = vec![s.row.to_string()];
-                    rec.extend(s.values.iter().map(|v| cell(*v)));
-                    if opts.uncertainty {
-                        for k in 0..report.len() {
-                            let u = s.uncertainty.get(k).and_then(|u| u.as_ref());
-                            rec.push(cell(u.map(|u| u.u95)));
-                            rec.push(u.map_or(String::new(), |u| u.top()));
-                        }
-                    }
-                    if opts.monte_carlo > 0 {
-                        for k in 0..report.len() {
-                            rec.push(cell(s.monte_carlo.get(k).copied().flatten()));
-                        }
-                    }
-                    rec.push(s.problems.join("; "));
+                csv_row,
+                |(bad, rec)| {
+                    bad_scans += u64::from(bad);
                     w.write_record(&rec).map_err(std::io::Error::other)
                 },
-                |b| {
-                    if let Some(bar) = &bar {
-                        bar.set_position(b)
-                    }
-                },
+                progress,
             );
             w.flush()
                 .map_err(|e| Failure::bad(format!("cannot write the output: {e}")))?;

@@ -514,6 +514,30 @@ impl Engine {
         Ok(())
     }
 
+    /// Set several givens' SI values at once, then recompute once.
+    pub fn set_si_many(&mut self, values: &[(&str, f64)]) -> Result<(), BookError> {
+        for (path, si) in values {
+            let mut found = false;
+            self.book.visit_givens(&mut |f| {
+                if f.is(path) {
+                    f.given.set_si(*si);
+                    found = true;
+                }
+            });
+            if !found {
+                self.recompute();
+                return Err(BookError::Unknown {
+                    whose: "the change".into(),
+                    what: "given",
+                    name: path.to_string(),
+                });
+            }
+            self.touch(path);
+        }
+        self.recompute();
+        Ok(())
+    }
+
     /// Mark what reads the given at `path` as dirty.
     fn touch(&mut self, path: &str) {
         let Ok(p) = Path::parse(path) else {

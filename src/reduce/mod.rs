@@ -380,10 +380,13 @@ impl Plan {
 
     /// Set the mapped givens and recompute.
     pub fn apply(&self, engine: &mut Engine, inputs: &Inputs) -> Result<(), String> {
-        for (c, v) in self.channels.iter().zip(&inputs.values) {
-            engine.set_si(&c.given, *v).map_err(|e| e.to_string())?;
-        }
-        Ok(())
+        let values: Vec<(&str, f64)> = self
+            .channels
+            .iter()
+            .zip(&inputs.values)
+            .map(|(c, v)| (c.given.as_str(), *v))
+            .collect();
+        engine.set_si_many(&values).map_err(|e| e.to_string())
     }
 
     /// Uncertainty variables: (label, nominal, systematic u, random u, gauge
@@ -455,12 +458,11 @@ fn shift(
     var_channels: &[usize],
     delta: f64,
 ) -> Result<(), String> {
-    for &i in var_channels {
-        engine
-            .set_si(&plan.channels[i].given, inputs.values[i] + delta)
-            .map_err(|e| e.to_string())?;
-    }
-    Ok(())
+    let values: Vec<(&str, f64)> = var_channels
+        .iter()
+        .map(|&i| (plan.channels[i].given.as_str(), inputs.values[i] + delta))
+        .collect();
+    engine.set_si_many(&values).map_err(|e| e.to_string())
 }
 
 /// Linearised uncertainty of each reported value at this scan. The engine
@@ -713,12 +715,38 @@ pub fn reduce_one(
 /// input order; `progress` receives the bytes read so far. Rows are read
 /// in batches, each reduced in parallel, so memory does not grow with the
 /// file.
-pub fn reduce<R: Read>(
+pub fn reduce<R: Read + Send>(
     engine: &Engine,
     reader: &mut csv::Reader<R>,
     report: &[String],
     opts: &Options,
     mut sink: impl FnMut(&ScanResult) -> std::io::Result<()>,
+    progress: impl FnMut(u64),
+) -> Result<(Plan, u64), ReduceError> {
+    reduce_with(
+        engine,
+        reader,
+        report,
+        opts,
+        |r| r.clone(),
+        |r| sink(&r),
+        progress,
+    )
+}
+
+type Batch = (Vec<(u64, csv::StringRecord)>, u64);
+
+/// [`reduce`] with a `render` step (formatting an output row, say) that
+/// runs on the worker threads beside the reduction. A reader thread reads
+/// the next batch while the current one is reduced; at most two batches
+/// wait, so memory stays bounded.
+pub fn reduce_with<R: Read + Send, T: Send>(
+    engine: &Engine,
+    reader: &mut csv::Reader<R>,
+    report: &[String],
+    opts: &Options,
+    render: impl Fn(&ScanResult) -> T + Sync,
+    mut sink: impl FnMut(T) -> std::io::Result<()>,
     mut progress: impl FnMut(u64),
 ) -> Result<(Plan, u64), ReduceError> {
     let header: Vec<String> = reader
@@ -737,59 +765,78 @@ pub fn reduce<R: Read>(
             .map_err(|e| ReduceError::Report(e.to_string()))?;
     }
     let batch = opts.batch.max(64);
+    let (tx, rx) = std::sync::mpsc::sync_channel::<Batch>(2);
     let mut rows = 0u64;
-    let mut buf: Vec<(u64, csv::StringRecord)> = Vec::with_capacity(batch);
-    let mut done = false;
-    while !done {
-        buf.clear();
-        while buf.len() < batch {
-            let mut rec = csv::StringRecord::new();
-            match reader.read_record(&mut rec) {
-                Ok(true) => {
-                    rows += 1;
-                    buf.push((rows, rec));
+    let result = std::thread::scope(|scope| {
+        scope.spawn(move || {
+            let mut row = 0u64;
+            loop {
+                let mut buf = Vec::with_capacity(batch);
+                let mut done = false;
+                while buf.len() < batch {
+                    let mut rec = csv::StringRecord::new();
+                    match reader.read_record(&mut rec) {
+                        Ok(true) => {
+                            row += 1;
+                            buf.push((row, rec));
+                        }
+                        Ok(false) => {
+                            done = true;
+                            break;
+                        }
+                        Err(e) => {
+                            // A malformed line is that scan's problem, not the run's.
+                            row += 1;
+                            buf.push((row, csv::StringRecord::from(vec![format!("\u{0}{e}")])));
+                        }
+                    }
                 }
-                Ok(false) => {
-                    done = true;
-                    break;
+                let pos = reader.position().byte();
+                if !buf.is_empty() && tx.send((buf, pos)).is_err() {
+                    return;
                 }
-                Err(e) => {
-                    // A malformed line is that scan's problem, not the run's.
-                    rows += 1;
-                    let bad = csv::StringRecord::from(vec![format!("\u{0}{e}")]);
-                    buf.push((rows, bad));
+                if done {
+                    return;
                 }
             }
-        }
-        let results: Vec<ScanResult> = buf
-            .par_iter()
-            .map_init(
-                || engine.clone(),
-                |eng, (row, rec)| {
-                    if rec.len() == 1 && rec.get(0).is_some_and(|c| c.starts_with('\u{0}')) {
-                        let msg = rec
-                            .get(0)
-                            .unwrap_or("")
-                            .trim_start_matches('\u{0}')
-                            .to_string();
-                        return ScanResult {
-                            row: *row,
-                            values: vec![None; report.len()],
-                            uncertainty: Vec::new(),
-                            monte_carlo: Vec::new(),
-                            problems: vec![format!("row {row}: unreadable line ({msg})")],
+        });
+        for (buf, pos) in rx {
+            rows += buf.len() as u64;
+            let out: Vec<T> = buf
+                .par_iter()
+                .map_init(
+                    || engine.clone(),
+                    |eng, (row, rec)| {
+                        let r = if rec.len() == 1
+                            && rec.get(0).is_some_and(|c| c.starts_with('\u{0}'))
+                        {
+                            let msg = rec
+                                .get(0)
+                                .unwrap_or("")
+                                .trim_start_matches('\u{0}')
+                                .to_string();
+                            ScanResult {
+                                row: *row,
+                                values: vec![None; report.len()],
+                                uncertainty: Vec::new(),
+                                monte_carlo: Vec::new(),
+                                problems: vec![format!("row {row}: unreadable line ({msg})")],
+                            }
+                        } else {
+                            reduce_one(eng, &plan, &header, rec, *row, report, opts)
                         };
-                    }
-                    reduce_one(eng, &plan, &header, rec, *row, report, opts)
-                },
-            )
-            .collect();
-        for r in &results {
-            sink(r).map_err(|e| ReduceError::Read(format!("cannot write the output: {e}")))?;
+                        render(&r)
+                    },
+                )
+                .collect();
+            for t in out {
+                sink(t).map_err(|e| ReduceError::Read(format!("cannot write the output: {e}")))?;
+            }
+            progress(pos);
         }
-        progress(reader.position().byte());
-    }
-    Ok((plan, rows))
+        Ok(())
+    });
+    result.map(|()| (plan, rows))
 }
 
 /// A CSV or tab-separated reader (tabs when the header line has a tab).
