@@ -345,7 +345,7 @@ fn insert_a_station_then_undo_and_redo() {
     assert_eq!(app.row, 3, "the new station is selected");
     // A loss-free duct changes nothing downstream.
     assert!(rel_change(thrust(&app), t0) < 1e-9);
-    assert!(render_text(&app, 80, 24).contains("> 3a      duct 3a"));
+    assert!(render_text(&app, 80, 24).contains("> 3a         duct 3a"));
     press(&mut app, "z");
     assert_eq!(station_names(&app), ORIGINAL);
     assert_eq!(thrust(&app).to_bits(), t0.to_bits());
@@ -724,7 +724,7 @@ fn col_of(b: &ratatui::buffer::Buffer, y: u16, needle: &str) -> u16 {
 fn given_and_derived_are_told_apart_without_colour() {
     let (app, _) = open_with(ascii());
     let b = render_buffer(&app, 80, 24);
-    let y4 = row_of(&b, "  4       combustor");
+    let y4 = row_of(&b, "  4          combustor");
     let x = col_of(&b, y4, "=1450.0");
     assert!(
         b[(x, y4)].modifier.contains(Modifier::BOLD),
@@ -732,17 +732,17 @@ fn given_and_derived_are_told_apart_without_colour() {
     );
     assert_eq!(b[(x, y4)].fg, Color::Reset, "no colour in this mode");
     // A derived value: no marker, not bold.
-    let y3 = row_of(&b, "  3       compressor");
+    let y3 = row_of(&b, "  3          compressor");
     let x = col_of(&b, y3, "600.98");
     assert_eq!(b[(x - 1, y3)].symbol(), " ", "derived has no = marker");
     assert!(!b[(x, y3)].modifier.contains(Modifier::BOLD));
     // The given mass flow of the free stream carries its marker too.
-    let y0 = row_of(&b, "> 0       freestream");
+    let y0 = row_of(&b, "> 0          freestream");
     assert!(col_of(&b, y0, "=20.000") > 0);
     // In colour the given also has a colour.
     let (app, _) = open();
     let b = render_buffer(&app, 80, 24);
-    let y4 = row_of(&b, "  4       combustor");
+    let y4 = row_of(&b, "  4          combustor");
     let x = col_of(&b, y4, "=1450.0");
     assert_eq!(b[(x, y4)].fg, Color::Cyan);
 }
@@ -752,7 +752,7 @@ fn the_selection_is_reversed_and_marked() {
     let (mut app, _) = open_with(ascii());
     press(&mut app, "j j");
     let b = render_buffer(&app, 80, 24);
-    let y = row_of(&b, "> 3       compressor");
+    let y = row_of(&b, "> 3          compressor");
     let x = col_of(&b, y, "600.98");
     assert!(
         b[(x, y)].modifier.contains(Modifier::REVERSED),
@@ -762,7 +762,7 @@ fn the_selection_is_reversed_and_marked() {
     let x2 = col_of(&b, y, "1003.1");
     assert!(b[(x2, y)].modifier.contains(Modifier::UNDERLINED));
     assert!(!b[(x2, y)].modifier.contains(Modifier::REVERSED));
-    let y2 = row_of(&b, "  2       intake");
+    let y2 = row_of(&b, "  2          intake");
     assert!((0..80).all(|x| !b[(x, y2)].modifier.contains(Modifier::REVERSED)));
     // In the panel the selected row is reversed, with its > marker.
     press(&mut app, "Tab j j");
@@ -797,10 +797,10 @@ fn a_failed_station_shows_its_problem() {
     assert_eq!(app.engine.as_ref().unwrap().problems().len(), 1);
     assert!(status(&app).1, "an edit that leaves a problem is an error");
     let b = render_buffer(&app, 80, 24);
-    let y = row_of(&b, "> 3       compressor");
+    let y = row_of(&b, "> 3          compressor");
     let x = col_of(&b, y, "!!");
     assert!(b[(x, y)].modifier.contains(Modifier::BOLD));
-    let y = row_of(&b, "  4       combustor");
+    let y = row_of(&b, "  4          combustor");
     assert!(col_of(&b, y, "..") > 0, "downstream is blocked");
     // The reason is in the panel, whole.
     let s = render_text(&app, 80, 24);
@@ -809,7 +809,7 @@ fn a_failed_station_shows_its_problem() {
     let (mut app, _) = open();
     press(&mut app, &format!("{TO_PR} Enter ctrl-u 1 0 0 0 0 Enter"));
     let b = render_buffer(&app, 80, 24);
-    let y = row_of(&b, "> 3       compressor");
+    let y = row_of(&b, "> 3          compressor");
     assert_eq!(b[(col_of(&b, y, "!!"), y)].fg, Color::Red);
 }
 

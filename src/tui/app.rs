@@ -121,6 +121,8 @@ pub enum TextFor {
 pub enum ChooseFor {
     /// A process kind for the process into the selected station.
     Kind,
+    /// What fixes the selected station's static state.
+    Statics,
     /// The start screen: recent files and templates.
     Start(Vec<StartItem>),
 }
@@ -463,9 +465,18 @@ impl App {
             rows.push(PanelRow::Statics);
             rows.push(PanelRow::Branch);
         }
+        // A combustor in the measured mode derives its efficiency: the
+        // efficiency given is not read, so it is not offered.
+        let unread = producer.and_then(|p| match &p.kind {
+            Kind::Combustor(Combustor {
+                mode: Burn::Measured(_),
+                ..
+            }) => Some(format!("process.{}.efficiency", p.name)),
+            _ => None,
+        });
         if let Some(pp) = pp {
             for (path, ..) in b.givens() {
-                if path.starts_with(&pp) {
+                if path.starts_with(&pp) && unread.as_deref() != Some(path.as_str()) {
                     rows.push(PanelRow::Given(path));
                 }
             }
@@ -682,7 +693,7 @@ impl App {
             Focus::Panel => match self.panel_rows().get(self.panel).cloned() {
                 Some(PanelRow::Given(p)) => p,
                 Some(PanelRow::Statics) => {
-                    self.cycle_statics();
+                    self.choose_statics();
                     return;
                 }
                 Some(PanelRow::Branch) => {
@@ -1035,7 +1046,35 @@ impl App {
         self.commit(nb, &format!("renamed process {old} to {new}"));
     }
 
-    fn cycle_statics(&mut self) {
+    fn choose_statics(&mut self) {
+        let cur = self
+            .book()
+            .and_then(|b| b.stations.get(self.row))
+            .map_or(0, |s| match s.statics {
+                None => 0,
+                Some(Statics::Mach(_)) => 1,
+                Some(Statics::Pressure(_)) => 2,
+                Some(Statics::Velocity(_)) => 3,
+                Some(Statics::Area(_)) => 4,
+            });
+        self.popups.push(Popup::Choose {
+            title: "what fixes this station's static state".into(),
+            items: [
+                "nothing here (totals only)",
+                "Mach number",
+                "static pressure",
+                "velocity",
+                "flow area (Mach on the station's branch)",
+            ]
+            .iter()
+            .map(|s| s.to_string())
+            .collect(),
+            sel: cur,
+            purpose: ChooseFor::Statics,
+        });
+    }
+
+    fn set_statics(&mut self, choice: usize) {
         let Some(e) = self.engine.as_ref() else {
             return;
         };
@@ -1045,23 +1084,25 @@ impl App {
         let v = e.station(&nb.stations[self.row].name).copied();
         let st = &mut nb.stations[self.row];
         let f = v.and_then(|v| v.flow);
-        let next = match &st.statics {
-            None => Some(Statics::Mach(Given::raw(&fmt_num(
+        // New givens start from the values computed now, so the cycle
+        // stays where it was until the user edits them.
+        let next = match choice {
+            1 => Some(Statics::Mach(Given::raw(&fmt_num(
                 f.map_or(0.5, |f| f.mach),
             )))),
-            Some(Statics::Mach(_)) => Some(Statics::Pressure(Given::raw(&format!(
+            2 => Some(Statics::Pressure(Given::raw(&format!(
                 "{} kPa",
                 fmt_num(f.map_or(100.0, |f| f.p / 1000.0))
             )))),
-            Some(Statics::Pressure(_)) => Some(Statics::Velocity(Given::raw(&format!(
+            3 => Some(Statics::Velocity(Given::raw(&format!(
                 "{} m/s",
                 fmt_num(f.map_or(100.0, |f| f.v))
             )))),
-            Some(Statics::Velocity(_)) => Some(Statics::Area(Given::raw(&format!(
+            4 => Some(Statics::Area(Given::raw(&format!(
                 "{} m2",
                 fmt_num(v.and_then(|v| v.area).unwrap_or(0.1))
             )))),
-            Some(Statics::Area(_)) => None,
+            _ => None,
         };
         st.statics = next;
         let what = match &st.statics {
@@ -1435,6 +1476,7 @@ impl App {
                 }
                 KeyCode::Enter => match purpose {
                     ChooseFor::Kind => self.set_kind(sel),
+                    ChooseFor::Statics => self.set_statics(sel),
                     ChooseFor::Start(list) => {
                         let r = match list.get(sel) {
                             Some(StartItem::File(f)) => self.open(f),

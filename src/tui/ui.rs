@@ -181,7 +181,7 @@ fn key_meta(k: &str) -> (&'static str, Quantity) {
         .map_or(("?", Quantity::Ratio), |(_, l, q)| (*l, *q))
 }
 
-const NAME_W: usize = 9;
+const NAME_W: usize = 12;
 const VIA_W: usize = 12;
 const CELL_W: usize = 10;
 
@@ -402,7 +402,7 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
             },
             PanelRow::Statics => (
                 format!(
-                    "{marker} static state   : {} (Enter cycles)",
+                    "{marker} static state   : {} (Enter picks)",
                     match &st.statics {
                         None => "not fixed here",
                         Some(crate::book::Statics::Mach(_)) => "by Mach number",
