@@ -383,15 +383,22 @@ impl App {
         let text = crate::templates::get(name).ok_or("no such template")?;
         let book = format::parse(text).map_err(|e| e.to_string())?;
         self.engine = Some(Engine::new(book).map_err(|e| crate::present::join(&e))?);
-        self.path = None;
+        // Keep a path the user named for a new file; otherwise untitled.
+        if self.path.as_ref().is_some_and(|p| p.exists()) {
+            self.path = None;
+        }
         self.disk = None;
         self.modified = true;
         self.undo.clear();
         self.redo.clear();
         self.row = 0;
-        self.info(format!(
-            "new workbook from the {name} demo (save with ctrl-s)"
-        ));
+        let target = self
+            .path
+            .as_ref()
+            .map_or("save with ctrl-s".to_string(), |p| {
+                format!("ctrl-s saves it as {}", p.display())
+            });
+        self.info(format!("new workbook from the {name} demo ({target})"));
         Ok(())
     }
 

@@ -74,6 +74,18 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
         app.status = Some((n, true));
     }
     match file {
+        // A file that does not exist yet: start it from a demo and save there.
+        Some(f) if !f.exists() => {
+            app.path = Some(f.to_path_buf());
+            app.start_screen();
+            app.status = Some((
+                format!(
+                    "{} does not exist yet: pick a demo to start it from",
+                    f.display()
+                ),
+                false,
+            ));
+        }
         Some(f) => app.open(f)?,
         None => app.start_screen(),
     }
