@@ -145,15 +145,25 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
     for s in &b.shafts {
         if let Some(sh) = engine.shaft(&s.name) {
             let pw = |v: f64| with_unit(v, crate::units::Quantity::Power, system);
-            writeln!(
-                out,
-                "  shaft {:<8} compressors {}, turbines {}, offtake {}, imbalance {}",
-                s.name,
-                pw(sh.compressor_power),
-                pw(sh.turbine_power),
-                pw(sh.offtake),
-                pw(sh.imbalance)
-            )?;
+            if sh.turbine_power == 0.0 {
+                writeln!(
+                    out,
+                    "  shaft {:<8} compressors {}, offtake {} (no turbine on it: driven from outside the workbook)",
+                    s.name,
+                    pw(sh.compressor_power),
+                    pw(sh.offtake)
+                )?;
+            } else {
+                writeln!(
+                    out,
+                    "  shaft {:<8} compressors {}, turbines {}, offtake {}, imbalance {}",
+                    s.name,
+                    pw(sh.compressor_power),
+                    pw(sh.turbine_power),
+                    pw(sh.offtake),
+                    pw(sh.imbalance)
+                )?;
+            }
         }
     }
     for (i, g) in engine.goal_outcomes().iter().enumerate() {

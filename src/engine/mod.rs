@@ -912,8 +912,24 @@ impl Engine {
     /// Every problem: processes that failed, goals that could not be met.
     pub fn problems(&self) -> Vec<Problem> {
         let mut v = Vec::new();
+        // A bad ambient block or gas setting fails every process that reads
+        // it: report it once, at its source.
+        for (place, text) in [
+            ("gas settings", &self.model.as_ref().err()),
+            ("ambient", &self.ambient.as_ref().err()),
+        ] {
+            if let Some(m) = text {
+                v.push(Problem {
+                    place: place.to_string(),
+                    message: (*m).clone(),
+                });
+            }
+        }
         for &i in &self.graph.order {
             if let Some(NodeOut::Failed(m)) = &self.nodes[i] {
+                if m.starts_with("ambient: ") || m.starts_with("gas settings: ") {
+                    continue;
+                }
                 let p = &self.book.processes[i];
                 v.push(Problem {
                     place: format!("{} \"{}\"", compute::kind_name(&p.kind), p.name),
