@@ -258,6 +258,8 @@ pub struct App {
     pub quit: bool,
     /// Loaded scans (scan browser).
     pub scans: Option<ScanBrowser>,
+    /// Scroll offset of the walk text and the sweep table.
+    pub scroll: u16,
 }
 
 /// Scans loaded for browsing.
@@ -322,6 +324,7 @@ impl App {
             sweep: None,
             quit: false,
             scans: None,
+            scroll: 0,
         };
         if !bad.is_empty() {
             app.error(format!("settings: keys not understood: {}", bad.join("; ")));
@@ -559,8 +562,13 @@ impl App {
             }
             Command::Edit if self.view == View::Sweep => self.open_sweep_form(),
             Command::Edit => self.edit_selected(),
+            Command::PageDown => self.scroll = self.scroll.saturating_add(10),
+            Command::PageUp => self.scroll = self.scroll.saturating_sub(10),
             Command::ViewGrid => self.view = View::Grid,
-            Command::ViewWalk => self.view = View::Walk,
+            Command::ViewWalk => {
+                self.view = View::Walk;
+                self.scroll = 0;
+            }
             Command::ViewChart => self.view = View::Chart,
             Command::ViewSweep => {
                 self.view = View::Sweep;
@@ -661,6 +669,9 @@ impl App {
     }
 
     fn move_sel(&mut self, d: isize) {
+        if self.view == View::Walk {
+            self.scroll = 0;
+        }
         if self.view == View::Grid && self.focus == Focus::Panel {
             let n = self.panel_rows().len();
             if n > 0 {

@@ -18,6 +18,10 @@ pub enum Command {
     Left,
     /// Move right (grid column).
     Right,
+    /// Scroll the walk text or the sweep table down a page.
+    PageDown,
+    /// Scroll up a page.
+    PageUp,
     /// Edit the selected given.
     Edit,
     /// Switch between the grid and the process panel.
@@ -196,6 +200,18 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
         &["["],
     ),
     (Command::ScanNext, "next-scan", "show the next scan", &["]"]),
+    (
+        Command::PageDown,
+        "page-down",
+        "scroll the walk explanation or the sweep table down",
+        &["PageDown", "ctrl-f"],
+    ),
+    (
+        Command::PageUp,
+        "page-up",
+        "scroll the walk explanation or the sweep table up",
+        &["PageUp", "ctrl-b"],
+    ),
     (Command::Help, "help", "this help", &["?", "F1"]),
     (
         Command::Quit,

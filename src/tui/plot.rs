@@ -94,18 +94,32 @@ pub fn render(
         }
     }
     for s in series {
+        // Points that land on one cell share a mark and a joined label
+        // ("0,2"), so no station disappears under another.
+        let mut cells: Vec<((usize, usize), String)> = Vec::new();
         for (i, &(x, y)) in s.points.iter().enumerate() {
             if !(x.is_finite() && y.is_finite()) {
                 continue;
             }
-            let (cx, cy) = to_cell(x, y);
-            grid[cy][cx] = s.mark;
-            if let Some(l) = s.labels.get(i) {
-                for (k, ch) in l.chars().enumerate() {
-                    let px = cx + 1 + k;
-                    if px < pw && (grid[cy][px] == ' ' || grid[cy][px] == line_ch) {
-                        grid[cy][px] = ch;
+            let c = to_cell(x, y);
+            let l = s.labels.get(i).copied().unwrap_or("");
+            match cells.iter_mut().find(|(cc, _)| *cc == c) {
+                Some((_, lab)) if !l.is_empty() => {
+                    if !lab.is_empty() {
+                        lab.push(',');
                     }
+                    lab.push_str(l);
+                }
+                Some(_) => {}
+                None => cells.push((c, l.to_string())),
+            }
+        }
+        for ((cx, cy), l) in cells {
+            grid[cy][cx] = s.mark;
+            for (k, ch) in l.chars().enumerate() {
+                let px = cx + 1 + k;
+                if px < pw && (grid[cy][px] == ' ' || grid[cy][px] == line_ch) {
+                    grid[cy][px] = ch;
                 }
             }
         }

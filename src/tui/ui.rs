@@ -88,10 +88,28 @@ pub fn draw(f: &mut Frame, app: &App) {
         f.render_widget(Paragraph::new(msg).wrap(Wrap { trim: true }), area);
         return;
     }
+    let (msg, err) = match (&app.status, station_problem(app)) {
+        (Some((m, e)), _) => (m.clone(), *e),
+        (None, Some(p)) => (p, true),
+        (None, None) if app.engine.is_none() => {
+            ("Up/Down choose, Enter opens, q quits".to_string(), false)
+        }
+        (None, None) => (
+            "Tab panel  Enter edit  1-4 views  u units  c columns  q quit".to_string(),
+            false,
+        ),
+    };
+    // A long message (a problem, a refused value) gets a second line
+    // rather than being cut at the edge.
+    let status_h = if msg.chars().count() > area.width as usize {
+        2
+    } else {
+        1
+    };
     let [top, body, status] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Min(5),
-        Constraint::Length(1),
+        Constraint::Length(status_h),
     ])
     .areas(area);
     f.render_widget(Paragraph::new(title_line(app)), top);
@@ -103,16 +121,11 @@ pub fn draw(f: &mut Frame, app: &App) {
             View::Sweep => sweep_view(f, app, &th, body),
         }
     }
-    let (msg, err) = match (&app.status, station_problem(app)) {
-        (Some((m, e)), _) => (m.clone(), *e),
-        (None, Some(p)) => (p, true),
-        (None, None) => (
-            "? help  q quit  Tab panel  Enter edit  1-4 views".to_string(),
-            false,
-        ),
-    };
     let style = if err { th.bad() } else { Style::default() };
-    f.render_widget(Paragraph::new(Span::styled(msg, style)), status);
+    f.render_widget(
+        Paragraph::new(Span::styled(msg, style)).wrap(Wrap { trim: true }),
+        status,
+    );
     for p in &app.popups {
         popup(f, app, &th, p, body);
     }
@@ -580,8 +593,9 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     };
     f.render_widget(
         Paragraph::new(body)
-            .block(th.block(" how each value was obtained (Up/Down: other stations) "))
-            .wrap(Wrap { trim: false }),
+            .block(th.block(" how each value was obtained (Up/Down station, PgUp/PgDn scroll) "))
+            .wrap(Wrap { trim: false })
+            .scroll((app.scroll, 0)),
         ra,
     );
 }
@@ -734,7 +748,22 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         head,
         Style::default().add_modifier(Modifier::BOLD),
     )));
-    for (x, ys) in &sw.rows {
+    let unit = |q: Quantity| {
+        let u = unit_label(q, app.system);
+        if u.is_empty() {
+            String::new()
+        } else {
+            format!("[{u}]")
+        }
+    };
+    let mut units_row = fit(&unit(qv), 10);
+    for r in &sw.report {
+        units_row.push_str(&fit(&unit(present::quantity(r)), 11));
+    }
+    tl.push(Line::from(Span::styled(units_row, th.dim())));
+    let room = (ta.height as usize).saturating_sub(4);
+    let first = (app.scroll as usize).min(sw.rows.len().saturating_sub(room));
+    for (x, ys) in sw.rows.iter().skip(first).take(room) {
         let mut l = fit(
             &crate::report::sig(present::shown(*x, qv, app.system), 5),
             10,
@@ -750,7 +779,17 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         }
         tl.push(Line::from(l));
     }
-    f.render_widget(Paragraph::new(tl).block(th.block(" table ")), ta);
+    let title = if sw.rows.len() > room {
+        format!(
+            " table, rows {}-{} of {} (PgUp/PgDn) ",
+            first + 1,
+            (first + room).min(sw.rows.len()),
+            sw.rows.len()
+        )
+    } else {
+        " table ".to_string()
+    };
+    f.render_widget(Paragraph::new(tl).block(th.block(title)), ta);
 }
 
 fn centered(area: Rect, w: u16, h: u16) -> Rect {
