@@ -84,7 +84,7 @@ pub fn compress<G: Thermo + ?Sized>(
         Efficiency::Isentropic(_) => invert_h(gas, s1.h + (h_ideal - s1.h) / eta, t_ideal)?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi + rl / eta, t_ideal)?,
     };
-    compression_stage(gas, tt_in, tt_out, pr, Some(t_ideal))
+    stage(gas, tt_in, tt_out, pr, Some(t_ideal), true)
 }
 
 /// Efficiencies and work of a compression from measured exit temperature.
@@ -96,47 +96,7 @@ pub fn measured_compression<G: Thermo + ?Sized>(
     tt_out: f64,
     pr: f64,
 ) -> Result<Stage, FlowError> {
-    compression_stage(gas, tt_in, tt_out, pr, None)
-}
-
-fn compression_stage<G: Thermo + ?Sized>(
-    gas: &G,
-    tt_in: f64,
-    tt_out: f64,
-    pr: f64,
-    t_ideal: Option<f64>,
-) -> Result<Stage, FlowError> {
-    let pr = check_ratio(pr)?;
-    let s1 = gas.state(tt_in)?;
-    let s2 = gas.state(tt_out)?;
-    let r = gas.r();
-    let rl = r * pr.ln();
-    let t_ideal = match t_ideal {
-        Some(t) => t,
-        None => invert_phi(gas, s1.phi + rl, tt_in * pr.powf(r / s1.cp))?,
-    };
-    let h_ideal = gas.h(t_ideal)?;
-    let dh = s2.h - s1.h;
-    if dh <= 0.0 && pr > 1.0 {
-        return Err(FlowError::BadInput {
-            what: "exit total temperature",
-            value: tt_out,
-            why: "a compressor with pressure rise must raise the total temperature",
-        });
-    }
-    let (eta_is, eta_p) = if pr == 1.0 {
-        (1.0, 1.0)
-    } else {
-        ((h_ideal - s1.h) / dh, rl / (s2.phi - s1.phi))
-    };
-    Ok(Stage {
-        tt_out,
-        tt_ideal: t_ideal,
-        pressure_ratio: pr,
-        work: dh,
-        eta_isentropic: eta_is,
-        eta_polytropic: eta_p,
-    })
+    stage(gas, tt_in, tt_out, pr, None, true)
 }
 
 /// Expand from `tt_in` by `pr` (= pt_in/pt_out) with efficiency `eff`.
@@ -157,7 +117,7 @@ pub fn expand<G: Thermo + ?Sized>(
         Efficiency::Isentropic(_) => invert_h(gas, s1.h - eta * (s1.h - h_ideal), t_ideal)?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi - eta * rl, t_ideal)?,
     };
-    expansion_stage(gas, tt_in, tt_out, pr, Some(t_ideal))
+    stage(gas, tt_in, tt_out, pr, Some(t_ideal), false)
 }
 
 /// Efficiencies and work of an expansion from measured exit temperature.
@@ -167,44 +127,55 @@ pub fn measured_expansion<G: Thermo + ?Sized>(
     tt_out: f64,
     pr: f64,
 ) -> Result<Stage, FlowError> {
-    expansion_stage(gas, tt_in, tt_out, pr, None)
+    stage(gas, tt_in, tt_out, pr, None, false)
 }
 
-fn expansion_stage<G: Thermo + ?Sized>(
+/// Work and both efficiencies of a stage between two total temperatures.
+/// `t_ideal` is the isentropic exit when the caller already has it.
+fn stage<G: Thermo + ?Sized>(
     gas: &G,
     tt_in: f64,
     tt_out: f64,
     pr: f64,
     t_ideal: Option<f64>,
+    compression: bool,
 ) -> Result<Stage, FlowError> {
     let pr = check_ratio(pr)?;
     let s1 = gas.state(tt_in)?;
     let s2 = gas.state(tt_out)?;
     let r = gas.r();
+    // +1 for a compression (entropy function rises along the isentrope with
+    // the pressure), -1 for an expansion.
+    let sense = if compression { 1.0 } else { -1.0 };
     let rl = r * pr.ln();
     let t_ideal = match t_ideal {
         Some(t) => t,
-        None => invert_phi(gas, s1.phi - rl, tt_in * pr.powf(-r / s1.cp))?,
+        None => invert_phi(gas, s1.phi + sense * rl, tt_in * pr.powf(sense * r / s1.cp))?,
     };
-    let h_ideal = gas.h(t_ideal)?;
-    let dh = s1.h - s2.h;
-    if dh <= 0.0 && pr > 1.0 {
+    let ideal_work = sense * (gas.h(t_ideal)? - s1.h);
+    let work = sense * (s2.h - s1.h);
+    if work <= 0.0 && pr > 1.0 {
         return Err(FlowError::BadInput {
             what: "exit total temperature",
             value: tt_out,
-            why: "a turbine with pressure drop must lower the total temperature",
+            why: if compression {
+                "a compressor with pressure rise must raise the total temperature"
+            } else {
+                "a turbine with pressure drop must lower the total temperature"
+            },
         });
     }
-    let (eta_is, eta_p) = if pr == 1.0 {
-        (1.0, 1.0)
-    } else {
-        (dh / (s1.h - h_ideal), (s1.phi - s2.phi) / rl)
+    let dphi = sense * (s2.phi - s1.phi);
+    let (eta_is, eta_p) = match (pr == 1.0, compression) {
+        (true, _) => (1.0, 1.0),
+        (false, true) => (ideal_work / work, rl / dphi),
+        (false, false) => (work / ideal_work, dphi / rl),
     };
     Ok(Stage {
         tt_out,
         tt_ideal: t_ideal,
         pressure_ratio: pr,
-        work: dh,
+        work,
         eta_isentropic: eta_is,
         eta_polytropic: eta_p,
     })
@@ -247,7 +218,7 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
         Efficiency::Polytropic(_) => ((s1.phi - gas.phi(tt_out)?) / eta, None),
     };
     let pr = (rl / r).exp();
-    expansion_stage(gas, tt_in, tt_out, pr, t_ideal)
+    stage(gas, tt_in, tt_out, pr, t_ideal, false)
 }
 
 /// Compression that absorbs `work` J/kg at efficiency `eff`.
