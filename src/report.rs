@@ -171,11 +171,31 @@ impl Printer for TextPrinter {
                     .max(c.unit.chars().count() + 2)
             })
             .collect();
+        // Text columns (names, problems) read better left-aligned.
+        let text_col: Vec<bool> = (0..table.columns.len())
+            .map(|i| {
+                table
+                    .rows
+                    .iter()
+                    .any(|r| matches!(r.get(i), Some(Cell::Text(_))))
+                    && !table
+                        .rows
+                        .iter()
+                        .any(|r| matches!(r.get(i), Some(Cell::Num(_))))
+            })
+            .collect();
         let line = |parts: Vec<String>| -> String {
             parts
                 .iter()
                 .zip(&widths)
-                .map(|(s, w)| format!("{s:>w$}"))
+                .zip(&text_col)
+                .map(|((s, w), left)| {
+                    if *left {
+                        format!("{s:<w$}")
+                    } else {
+                        format!("{s:>w$}")
+                    }
+                })
                 .collect::<Vec<_>>()
                 .join("  ")
                 .trim_end()

@@ -69,7 +69,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         .filter(|s| !s.is_empty())
         .collect();
     let values = sweep::linspace(from, to, steps);
-    let rows = sweep::run(&engine, path, &values, &report).map_err(Failure::bad)?;
+    let rows = sweep::run_checked(&engine, path, &values, &report).map_err(Failure::bad)?;
     let system: UnitSystem = if a.format == OutFormat::Json {
         UnitSystem::Si
     } else {
@@ -79,11 +79,19 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     for r in &report {
         cols.push(Column::new(r, r, &unit_label(quantity(r), system)));
     }
+    // Say why a point has no value (choking, a rich mixture, ...).
+    let any_problem = rows.iter().any(|(_, p)| p.is_some());
+    if any_problem {
+        cols.push(Column::new("problem", "problem", ""));
+    }
     let mut t = Table::new(cols);
-    for (x, vals) in rows {
+    for ((x, vals), problem) in rows {
         let mut row = vec![Cell::from(shown(x, q, system))];
         for (r, v) in report.iter().zip(vals) {
             row.push(Cell::from(v.map(|v| shown(v, quantity(r), system))));
+        }
+        if any_problem {
+            row.push(problem.map_or(Cell::Empty, Cell::from));
         }
         t.rows.push(row);
     }

@@ -20,6 +20,19 @@ pub fn run(
     values: &[f64],
     report: &[String],
 ) -> Result<Vec<Row>, BookError> {
+    Ok(run_checked(engine, vary, values, report)?
+        .into_iter()
+        .map(|(r, _)| r)
+        .collect())
+}
+
+/// [`run`], with the first problem of each point (why a value is missing).
+pub fn run_checked(
+    engine: &Engine,
+    vary: &str,
+    values: &[f64],
+    report: &[String],
+) -> Result<Vec<(Row, Option<String>)>, BookError> {
     for r in report {
         engine
             .value(r)
@@ -34,7 +47,7 @@ pub fn run(
     }
     let threads = rayon::current_num_threads().max(1);
     let chunk = values.len().div_ceil(threads).max(1);
-    let rows: Vec<Vec<Row>> = values
+    let rows: Vec<Vec<(Row, Option<String>)>> = values
         .par_chunks(chunk)
         .map(|part| {
             let mut e = engine.clone();
@@ -42,7 +55,11 @@ pub fn run(
                 .map(|&x| {
                     let _ = e.set_si(vary, x);
                     let vals = report.iter().map(|r| e.value(r).ok().flatten()).collect();
-                    (x, vals)
+                    let problem = e
+                        .problems()
+                        .first()
+                        .map(|p| format!("{}: {}", p.place, p.message));
+                    ((x, vals), problem)
                 })
                 .collect()
         })
