@@ -334,7 +334,10 @@ fn insert_a_station_then_undo_and_redo() {
     let t0 = thrust(&app);
     press(&mut app, "j j a");
     match app.popups.last() {
-        Some(Popup::Text { input, .. }) => assert_eq!(input, "3a"),
+        Some(Popup::Text { input, title, .. }) => {
+            assert_eq!(input, "", "the name starts empty: typing replaces nothing");
+            assert!(title.contains("Enter alone: 3a"), "{title}");
+        }
         other => panic!("{other:?}"),
     }
     press(&mut app, "Enter");
@@ -846,6 +849,10 @@ fn snap_all(name: &str, keys: &str) {
     }
 }
 
+// Screen snapshots are golden files of our own drawing (not an outside
+// source): they freeze the layout at 80x24 and 120x40 in colour and ASCII
+// so that a change shows in review; meaning is asserted on styled cells by
+// the tests above.
 #[test]
 fn snapshot_grid_totals() {
     snap_all("grid_totals", "j j");

@@ -28,6 +28,9 @@ pub const FORMAT_VERSION: u32 = 1;
 pub struct Given {
     text: String,
     si: f64,
+    /// Set when the SI value no longer comes from the text (a scan, a
+    /// sweep point, a goal or an uncertainty trial set it).
+    varied: bool,
 }
 
 impl Given {
@@ -37,6 +40,7 @@ impl Given {
         Ok(Given {
             text: text.trim().to_string(),
             si: p.si,
+            varied: false,
         })
     }
 
@@ -45,6 +49,7 @@ impl Given {
         Given {
             text: text.to_string(),
             si: f64::NAN,
+            varied: false,
         }
     }
 
@@ -61,10 +66,27 @@ impl Given {
     /// Set the SI value without changing the text (a goal varies a given).
     pub fn set_si(&mut self, si: f64) {
         self.si = si;
+        self.varied = true;
+    }
+
+    /// Whether the SI value was set apart from the text.
+    pub fn is_varied(&self) -> bool {
+        self.varied
+    }
+
+    /// The value for a message: the text as typed, or the SI value in use
+    /// when a scan, sweep or goal has set it.
+    pub fn shown(&self) -> String {
+        if self.varied {
+            format!("{} (SI value in use)", crate::report::sig(self.si, 6))
+        } else {
+            self.text.clone()
+        }
     }
 
     fn resolve(&mut self, q: Quantity, field: &str) -> Result<(), UnitError> {
         self.si = units::parse(&self.text, q, field)?.si;
+        self.varied = false;
         Ok(())
     }
 }
@@ -985,6 +1007,18 @@ impl Workbook {
         let mut out = Vec::new();
         copy.visit_givens(&mut |f| {
             out.push((f.path(), f.quantity, f.given.text.clone(), f.given.si));
+        });
+        out
+    }
+
+    /// One given by path, with its quantity.
+    pub fn given(&self, path: &str) -> Option<(Quantity, Given)> {
+        let mut copy = self.clone();
+        let mut out = None;
+        copy.visit_givens(&mut |f| {
+            if f.is(path) {
+                out = Some((f.quantity, f.given.clone()));
+            }
         });
         out
     }

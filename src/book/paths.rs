@@ -126,7 +126,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
-pub const FIGURE_KEYS: [(&str, &str, Quantity); 36] = [
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 37] = [
     ("pressure_ratio", "pressure ratio", Quantity::Ratio),
     ("tt_ratio", "Tt ratio", Quantity::Ratio),
     ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
@@ -151,6 +151,11 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 36] = [
     ),
     ("mach_in", "inlet Mach", Quantity::Mach),
     ("mach_out", "exit Mach", Quantity::Mach),
+    (
+        "v_actual",
+        "actual exit velocity (Cv x ideal)",
+        Quantity::Velocity,
+    ),
     ("beta", "wave angle", Quantity::Angle),
     ("max_deflection", "max deflection", Quantity::Angle),
     ("thrust", "gross thrust", Quantity::Force),

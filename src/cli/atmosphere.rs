@@ -11,7 +11,7 @@ pub(super) struct Args {
     /// Altitudes: comma list and/or FROM:TO:STEP, in metres (feet with --units us).
     #[arg(long, allow_hyphen_values = true)]
     altitude: String,
-    /// Hot- or cold-day temperature offset from standard ("15", "15 K", "27 degF").
+    /// Hot- or cold-day temperature offset from standard ("15 K", "27 degF"; a bare number is K, or degF with --units us).
     #[arg(long, default_value = "0 K", allow_hyphen_values = true)]
     offset: String,
     /// Altitudes are geometric (height above sea level) instead of geopotential.
@@ -29,7 +29,13 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let system: UnitSystem = a.units.into();
     let alts = crate::table::parse_list(&a.altitude)
         .map_err(|e| Failure::bad(format!("--altitude: {e}")))?;
-    let offset = units::parse(&a.offset, Quantity::TemperatureDifference, "--offset")
+    // A bare offset follows the unit set, as bare altitudes do.
+    let offset_text = if system == UnitSystem::Us && a.offset.trim().parse::<f64>().is_ok() {
+        format!("{} degF", a.offset.trim())
+    } else {
+        a.offset.clone()
+    };
+    let offset = units::parse(&offset_text, Quantity::TemperatureDifference, "--offset")
         .map_err(Failure::bad)?
         .si;
     let kind = if a.geometric {

@@ -217,9 +217,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             writeln!(out).map_err(io)?;
         }
         OutFormat::Csv => {
-            report::CsvPrinter
-                .print(&stations_table(&engine, system), &mut out)
-                .map_err(io)?;
+            let mut st = stations_table(&engine, system);
+            crate::present::keys_with_units(&mut st);
+            report::CsvPrinter.print(&st, &mut out).map_err(io)?;
             writeln!(out).map_err(io)?;
             let mut t = Table::new(vec![
                 Column::new("summary", "summary", ""),

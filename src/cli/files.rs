@@ -15,12 +15,13 @@ pub(super) struct CheckArgs {
 }
 
 pub(super) fn check(a: CheckArgs) -> Result<u8, Failure> {
-    let mut code = 0u8;
+    // An unreadable file (1) outranks problems (2): it was not checked at all.
+    let (mut unreadable, mut problems_found) = (false, false);
     for f in &a.files {
         match common::open(f) {
             Err(e) => {
                 eprintln!("{}: cannot load: {}", f.display(), e.message);
-                code = code.max(1).max(if code == 2 { 2 } else { 1 });
+                unreadable = true;
             }
             Ok((book, engine)) => {
                 let problems = engine.problems();
@@ -34,12 +35,18 @@ pub(super) fn check(a: CheckArgs) -> Result<u8, Failure> {
                     for s in stale {
                         println!("{}: stored result out of date: {s}", f.display());
                     }
-                    code = 2;
+                    problems_found = true;
                 }
             }
         }
     }
-    Ok(code)
+    Ok(if unreadable {
+        1
+    } else if problems_found {
+        2
+    } else {
+        0
+    })
 }
 
 /// Rewrite workbooks in canonical form (what a save writes).

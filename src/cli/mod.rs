@@ -138,7 +138,16 @@ pub(crate) fn print_table(t: &crate::report::Table, format: OutFormat) -> Result
 
 /// Parse arguments, run, map the outcome to an exit code.
 pub fn run() -> ExitCode {
-    let cli = Cli::parse();
+    // Usage errors exit 1 (a bad request), as documented; 2 is kept for
+    // workbook problems. Help and version go to stdout with 0.
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 1 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
     let Some(command) = cli.command else {
         let opts = crate::tui::Options {
             ascii: cli.ascii,

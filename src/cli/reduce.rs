@@ -49,7 +49,40 @@ fn report_list(text: &Option<String>, engine: &crate::engine::Engine) -> Vec<Str
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
     let report = report_list(&a.report, &engine);
-    let mut reader = reduce::open_scans(&a.scans).map_err(Failure::bad)?;
+    if a.format == OutFormat::Text {
+        return Err(Failure::bad(
+            "reduce writes csv or json (--format csv|json)",
+        ));
+    }
+    if a.monte_carlo > MAX_MC {
+        return Err(Failure::bad(format!(
+            "--monte-carlo: at most {MAX_MC} samples per scan"
+        )));
+    }
+    let mut reader = reduce::open_scans(&a.scans)
+        .map_err(|e| Failure::bad(format!("{}: {e}", a.scans.display())))?;
+    // Check the channel map against the header and the report paths before
+    // anything is written, so a failed run leaves no half output.
+    {
+        let header: Vec<String> = reader
+            .headers()
+            .map_err(|e| Failure::bad(format!("{}: {e}", a.scans.display())))?
+            .iter()
+            .map(|s| s.trim().to_string())
+            .collect();
+        if header.iter().all(|h| h.is_empty()) {
+            return Err(Failure::bad(format!(
+                "{}: empty file: no header row",
+                a.scans.display()
+            )));
+        }
+        Plan::new(engine.book(), &header).map_err(Failure::bad)?;
+        for r in &report {
+            engine
+                .value(r)
+                .map_err(|e| Failure::bad(format!("--report: {e}")))?;
+        }
+    }
     let opts = Options {
         uncertainty: a.uncertainty,
         monte_carlo: a.monte_carlo,
@@ -195,6 +228,12 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         b.finish_and_clear();
     }
     let (_, rows) = result.map_err(Failure::bad)?;
+    if rows == 0 {
+        eprintln!(
+            "stationwise: {}: no scans after the header",
+            a.scans.display()
+        );
+    }
     if bad_scans > 0 {
         eprintln!(
             "stationwise: {bad_scans} of {rows} scans had problems (see the problems column)"
@@ -224,7 +263,15 @@ pub(super) struct UncArgs {
     units: Units,
 }
 
+/// Largest Monte Carlo sample count accepted.
+const MAX_MC: usize = 1_000_000;
+
 pub(super) fn uncertainty(a: UncArgs) -> Result<u8, Failure> {
+    if a.monte_carlo != 0 && !(100..=MAX_MC).contains(&a.monte_carlo) {
+        return Err(Failure::bad(format!(
+            "--monte-carlo: between 100 and {MAX_MC} samples (a spread needs many)"
+        )));
+    }
     let (book, engine) = common::open(&a.file)?;
     let report = report_list(&a.report, &engine);
     for r in &report {

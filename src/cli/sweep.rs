@@ -85,15 +85,21 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         cols.push(Column::new("problem", "problem", ""));
     }
     let mut t = Table::new(cols);
+    // JSON carries plain SI (K, Pa, N, kg/s, W, rad/s); text and CSV the display units.
+    let json = a.format == OutFormat::Json;
+    let conv = |v: f64, q| if json { v } else { shown(v, q, system) };
     for ((x, vals), problem) in rows {
-        let mut row = vec![Cell::from(shown(x, q, system))];
+        let mut row = vec![Cell::from(conv(x, q))];
         for (r, v) in report.iter().zip(vals) {
-            row.push(Cell::from(v.map(|v| shown(v, quantity(r), system))));
+            row.push(Cell::from(v.map(|v| conv(v, quantity(r)))));
         }
         if any_problem {
             row.push(problem.map_or(Cell::Empty, Cell::from));
         }
         t.rows.push(row);
+    }
+    if a.format == OutFormat::Csv {
+        crate::present::keys_with_units(&mut t);
     }
     print_table(&t, a.format)?;
     Ok(0)

@@ -105,7 +105,7 @@ fn ratio(g: &Given, what: &str, lo: f64, hi: f64) -> Res<f64> {
     } else {
         Err(format!(
             "{what} {} is outside the sensible range {lo} to {hi}",
-            g.text()
+            g.shown()
         ))
     }
 }
@@ -115,19 +115,19 @@ fn positive(g: &Given, what: &str) -> Res<f64> {
     if v.is_finite() && v > 0.0 {
         Ok(v)
     } else {
-        Err(format!("{what} {} must be positive", g.text()))
+        Err(format!("{what} {} must be positive", g.shown()))
     }
 }
 
 fn efficiency(g: &Given, basis: Basis, what: &str) -> Res<Efficiency> {
     let v = g.si();
     if !(v.is_finite() && v > 0.0) {
-        return Err(format!("{what} efficiency {} must be positive", g.text()));
+        return Err(format!("{what} efficiency {} must be positive", g.shown()));
     }
     if v > 1.0 {
         return Err(format!(
             "{what} efficiency {} is above 1: no real machine does better than ideal",
-            g.text()
+            g.shown()
         ));
     }
     Ok(match basis {
@@ -577,13 +577,13 @@ fn duct(
             if !(r.is_finite() && r > 0.0) {
                 return Err(format!(
                     "pressure recovery {} must be positive",
-                    recovery.text()
+                    recovery.shown()
                 ));
             }
             if r > 1.0 {
                 return Err(format!(
                     "pressure recovery {} is above 1: an adiabatic duct cannot raise total pressure",
-                    recovery.text()
+                    recovery.shown()
                 ));
             }
             step!(
@@ -647,7 +647,7 @@ fn duct(
             if pt > i.pt * (1.0 + 1e-9) {
                 return Err(format!(
                     "measured outlet pt {} is above the inlet's {:.1} Pa: an adiabatic duct cannot raise total pressure (check the probes)",
-                    m.text(),
+                    m.shown(),
                     i.pt
                 ));
             }
@@ -1196,6 +1196,12 @@ fn nozzle(
     let cv = ratio(&n.cv, "velocity coefficient", 0.5, 1.0)?;
     let cd = ratio(&n.cd, "discharge coefficient", 0.5, 1.0)?;
     let p_amb = ctx.ambient.flow.p;
+    if i.pt <= p_amb {
+        return Err(format!(
+            "the nozzle cannot discharge: total pressure {:.0} Pa is not above the ambient {p_amb:.0} Pa (reverse flow)",
+            i.pt
+        ));
+    }
     let star = isentropic::sonic(&g, i.tt, i.pt).map_err(fe)?;
     let npr = i.pt / p_amb;
     let choked = star.p >= p_amb;
@@ -1281,13 +1287,15 @@ fn nozzle(
             ("A effective", area_eff, Area)
         ]
     );
-    let exit_state = FlowState { v, ..exit };
+    // The station shows the ideal (isentropic) exit state, consistent in
+    // itself; the velocity coefficient acts on the thrust and is reported
+    // as the actual exit velocity figure.
     let out = StationValue {
         w: i.w,
         tt: i.tt,
         pt: i.pt,
         comp: i.comp,
-        flow: Some(exit_state),
+        flow: Some(exit),
         area: Some(area_eff / cd),
     };
     if to.statics.is_some() {
@@ -1309,6 +1317,7 @@ fn nozzle(
             i.w / (if choked { star.flux() } else { exit.flux() }) / cd,
         ),
         ("mach_out", exit.mach),
+        ("v_actual", v),
         ("exit_p_ratio", exit.p / p_amb),
         ("npr", npr),
         ("choked", if choked { 1.0 } else { 0.0 }),

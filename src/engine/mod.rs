@@ -25,8 +25,7 @@ pub mod sweep;
 use crate::atmosphere::{self, AltitudeKind};
 use crate::book::paths::{STATION_KEYS, SUMMARY_KEYS, Scope};
 use crate::book::{
-    BookError, Condition, Entry, Expansion, Flight, GasSettings, Kind, Path, PathError, Station,
-    Workbook,
+    BookError, Condition, Expansion, Flight, GasSettings, Kind, Path, PathError, Station, Workbook,
 };
 use crate::flow::{FlowState, isentropic, solve};
 use crate::gas::{Composition, GasModel, PerfectGas, T_REFERENCE, Thermo};
@@ -396,6 +395,11 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
         }
     }
+    if book.stations.is_empty() || book.processes.is_empty() {
+        errors.push(BookError::Rule(
+            "a workbook needs at least one station and the process (an entry) that feeds it".into(),
+        ));
+    }
     if !errors.is_empty() {
         return Err(errors);
     }
@@ -655,7 +659,7 @@ impl Engine {
             return Err(format!(
                 "shaft \"{}\": mechanical efficiency {} must lie above 0 and at most 1",
                 sh.name,
-                sh.mechanical_efficiency.text()
+                sh.mechanical_efficiency.shown()
             ));
         }
         let offtake = sh.offtake.as_ref().map_or(0.0, |g| g.si());
@@ -794,15 +798,19 @@ impl Engine {
             if fuel > 0.0 && net > 0.0 {
                 s.tsfc = Some(fuel / net);
             }
+            // Efficiencies only where they mean something: a positive
+            // kinetic-energy gain, positive net thrust, and a propulsive
+            // efficiency of at most one (with fuel mass carried, F/W jet
+            // velocities near flight speed can push the ratio past one).
             let v0 = self.ambient.as_ref().map_or(0.0, |a| a.flow.v);
             let dke = ke_out - ke_in + offtake;
-            if heat > 0.0 {
+            if heat > 0.0 && dke > 0.0 {
                 s.eta_thermal = Some(dke / heat);
-                if v0 > 0.0 {
+                if v0 > 0.0 && net > 0.0 {
                     s.eta_overall = Some(net * v0 / heat);
                 }
             }
-            if v0 > 0.0 && dke > 0.0 {
+            if v0 > 0.0 && dke > 0.0 && net > 0.0 && net * v0 <= dke {
                 s.eta_propulsive = Some(net * v0 / dke);
             }
         }
@@ -812,7 +820,7 @@ impl Engine {
     fn solve_goals(&mut self) {
         let goals = self.book.goals.clone();
         self.goals.clear();
-        for (k, g) in goals.iter().enumerate() {
+        for g in &goals {
             let target = g.value.si();
             let scale = target.abs().max(1e-12);
             let mut last_problem: Option<String> = None;
@@ -822,18 +830,28 @@ impl Engine {
                 match eng.value(&g.target) {
                     Ok(Some(v)) => Ok((v - target) / scale),
                     Ok(None) => Err(format!(
-                        "goal {}: {} is not computed with {} = {x:.6} ({})",
-                        k + 1,
+                        "{} is not computed with {} = {x:.6} ({})",
                         g.target,
                         g.vary,
                         eng.problems()
                             .first()
                             .map_or(String::new(), |p| p.message.clone())
                     )),
-                    Err(e) => Err(format!("goal {}: {e}", k + 1)),
+                    Err(e) => Err(e.to_string()),
                 }
             };
             let (lo, hi) = (g.low.si(), g.high.si());
+            if !(lo < hi) {
+                self.goals.push(GoalOutcome {
+                    value: None,
+                    problem: Some(format!(
+                        "the bracket low {} must lie below high {}",
+                        g.low.text(),
+                        g.high.text()
+                    )),
+                });
+                continue;
+            }
             let original = self
                 .book
                 .givens()
@@ -858,23 +876,21 @@ impl Engine {
                         solve::SolveError::Inner(m) => m,
                         solve::SolveError::Stopped(solve::Failure::NoRoot { at_lo, at_hi }) => {
                             format!(
-                                "goal {}: {} cannot reach {} by varying {} between {} and {} (misses by {:.4e} and {:.4e} relative)",
-                                k + 1,
+                                "{} cannot reach {} by varying {} between {} and {} (it misses by {:+.3} % and {:+.3} % there)",
                                 g.target,
                                 g.value.text(),
                                 g.vary,
                                 g.low.text(),
                                 g.high.text(),
-                                at_lo,
-                                at_hi
+                                at_lo * 100.0,
+                                at_hi * 100.0
                             )
                         }
                         solve::SolveError::Stopped(solve::Failure::IterationCap {
                             iterations,
                             residual,
                         }) => format!(
-                            "goal {}: no convergence after {iterations} trials (residual {residual:.3e})",
-                            k + 1
+                            "no convergence after {iterations} trials (residual {residual:.3e})"
                         ),
                     };
                     // Leave the varied given where the user put it.
@@ -1186,13 +1202,5 @@ impl Engine {
     /// Stations in the order the flow passes them (producer order).
     pub fn stations(&self) -> &[Station] {
         &self.book.stations
-    }
-
-    /// Whether a station's named given is consumed as an input (for display).
-    pub fn entry_of(&self, s: usize) -> Option<&Entry> {
-        match &self.book.processes[self.graph.producer[s]].kind {
-            Kind::Entry(e) => Some(e),
-            _ => None,
-        }
     }
 }

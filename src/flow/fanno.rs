@@ -170,6 +170,8 @@ mod tests {
     fn friction_duct_keeps_tt_and_chokes_past_the_limit() {
         let gas = Gas::Perfect(PerfectGas::AIR);
         let inlet = isentropic::from_mach(&gas, 300.0, 1e5, 0.5).unwrap();
+        // 4fL*/D at M 0.5 minus that at M 0.8 (NACA 1135 rows above, from
+        // memory): a duct of that length takes M 0.5 to M 0.8.
         let out = friction(&gas, &inlet, 1.0691 - 0.07229).unwrap();
         assert_relative_eq!(out.mach, 0.8, max_relative = 2e-4);
         assert_relative_eq!(out.tt, 300.0, max_relative = 1e-12);

@@ -47,6 +47,10 @@ pub mod closed {
 
 /// Downstream state of a normal shock.
 pub fn normal(gas: &Gas, up: &FlowState) -> Result<FlowState, FlowError> {
+    // At Mach 1 exactly the shock has vanished: the state passes unchanged.
+    if (up.mach - 1.0).abs() <= 1e-9 {
+        return Ok(*up);
+    }
     if !(up.mach.is_finite() && up.mach > 1.0) {
         return Err(FlowError::SubsonicShock { mach: up.mach });
     }

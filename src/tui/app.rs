@@ -336,7 +336,12 @@ impl App {
     pub fn start_screen(&mut self) {
         let mut items = Vec::new();
         let mut labels = Vec::new();
-        for f in settings::recent().into_iter().filter(|f| f.exists()) {
+        // Starting a named new file: only the demos make sense.
+        let new_file = self.path.as_ref().is_some_and(|p| !p.exists());
+        for f in settings::recent()
+            .into_iter()
+            .filter(|f| f.exists() && !new_file)
+        {
             labels.push(format!("open   {}", f.display()));
             items.push(StartItem::File(f));
         }
@@ -616,9 +621,13 @@ impl App {
                     .book()
                     .and_then(|b| b.stations.get(self.row))
                     .map_or("new".into(), |s| format!("{}a", s.name));
+                // Start empty: typing gives the name, Enter alone takes the
+                // suggestion.
                 self.popups.push(Popup::Text {
-                    title: "name of the new station (a duct leads into it)".into(),
-                    input: name,
+                    title: format!(
+                        "name of the new station (a duct leads into it; Enter alone: {name})"
+                    ),
+                    input: String::new(),
                     purpose: TextFor::Insert(self.row),
                 });
             }
@@ -1164,6 +1173,58 @@ impl App {
             return;
         };
         p.kind = k;
+        // Coming back to a design mode from a measured or shaft mode, start
+        // from the machine's figures now, not from defaults.
+        if let Some(r) = e.process(&p.name) {
+            let fig = |k: &str| r.figure(k).map(|v| Given::raw(&fmt_num(v)));
+            match &mut p.kind {
+                Kind::Compressor(Compressor {
+                    mode:
+                        Compression::Design {
+                            pressure_ratio,
+                            efficiency,
+                            basis,
+                        },
+                    ..
+                })
+                | Kind::Turbine(Turbine {
+                    mode:
+                        Expansion::Design {
+                            pressure_ratio,
+                            efficiency,
+                            basis,
+                        },
+                    ..
+                }) => {
+                    if let Some(g) = fig("pressure_ratio") {
+                        *pressure_ratio = g;
+                    }
+                    let key = match basis {
+                        Basis::Isentropic => "eta_isentropic",
+                        Basis::Polytropic => "eta_polytropic",
+                    };
+                    if let Some(g) = fig(key).filter(|g| {
+                        crate::units::parse(g.text(), Quantity::Ratio, "e")
+                            .is_ok_and(|x| x.si > 0.0 && x.si <= 1.0)
+                    }) {
+                        *efficiency = g;
+                    }
+                }
+                Kind::Turbine(Turbine {
+                    mode: Expansion::ShaftWork { efficiency, basis },
+                    ..
+                }) => {
+                    let key = match basis {
+                        Basis::Isentropic => "eta_isentropic",
+                        Basis::Polytropic => "eta_polytropic",
+                    };
+                    if let Some(g) = fig(key) {
+                        *efficiency = g;
+                    }
+                }
+                _ => {}
+            }
+        }
         let label = mode_label(&p.kind);
         self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
@@ -1623,7 +1684,16 @@ impl App {
         match purpose {
             TextFor::RenameStation(i) => self.do_rename_station(i, input),
             TextFor::RenameProcess(i) => self.do_rename_process(i, input),
-            TextFor::Insert(i) => self.insert_station(i, input),
+            TextFor::Insert(i) => {
+                let name = if input.trim().is_empty() {
+                    self.book()
+                        .and_then(|b| b.stations.get(i))
+                        .map_or("new".into(), |s| format!("{}a", s.name))
+                } else {
+                    input.to_string()
+                };
+                self.insert_station(i, &name)
+            }
             TextFor::SaveAs => {
                 let p = PathBuf::from(input.trim());
                 if p.as_os_str().is_empty() {

@@ -75,6 +75,15 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
     }
     match file {
         // A file that does not exist yet: start it from a demo and save there.
+        // A name without an extension is more likely a mistyped command
+        // ("chek") than a new workbook.
+        Some(f) if !f.exists() && f.extension().is_none() => {
+            return Err(format!(
+                "{}: no such file or command (see stationwise --help; a new workbook needs a name such as {}.ron)",
+                f.display(),
+                f.display()
+            ));
+        }
         Some(f) if !f.exists() => {
             app.path = Some(f.to_path_buf());
             app.start_screen();

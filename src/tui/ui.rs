@@ -361,9 +361,14 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
 
 fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
     let b = app.book()?;
-    let (_, q, text, si) = b.givens().into_iter().find(|(p, ..)| p == path)?;
+    let (q, g) = b.given(path)?;
+    let (text, si) = (g.text().to_string(), g.si());
     let field = path.rsplit('.').next().unwrap_or(path).to_string();
     let shown = with_unit(si, q, app.system);
+    // A scan (or sweep, goal) sets the value in use apart from the file's text.
+    if g.is_varied() {
+        return Some((field, format!("{shown}  (scan; file: {text})"), true));
+    }
     let same = text.trim() == shown.trim() || matches!(q, Quantity::Ratio | Quantity::Mach);
     Some((
         field,
