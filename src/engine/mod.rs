@@ -841,7 +841,7 @@ impl Engine {
                 }
             };
             let (lo, hi) = (g.low.si(), g.high.si());
-            if !(lo < hi) {
+            if lo.partial_cmp(&hi) != Some(std::cmp::Ordering::Less) {
                 self.goals.push(GoalOutcome {
                     value: None,
                     problem: Some(format!(
