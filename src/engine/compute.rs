@@ -392,6 +392,14 @@ pub fn run(
                 "W_core = W/(1 + BPR)",
                 [("W", i.w, MassFlow), ("BPR", bpr, Ratio)]
             );
+            step!(
+                tr,
+                "W bypass",
+                i.w - wc,
+                MassFlow,
+                "W_bypass = W - W_core (same Tt and pt in both streams)",
+                [("W", i.w, MassFlow), ("W core", wc, MassFlow)]
+            );
             let core = finish(&g, to, wc, i.tt, i.pt, i.comp, None, "split", tr)?;
             let byp = finish(
                 &g,
@@ -996,12 +1004,17 @@ fn compressor(
             ("R", g.r(), SpecificHeat)
         ]
     );
+    let how = if *mode == Compression::Measured {
+        "measured; eta_is = (h(Tt_ideal) - h(Tt_in))/(h(Tt_out) - h(Tt_in)), eta_p = R ln(PR)/(phi(Tt_out) - phi(Tt_in))"
+    } else {
+        "h(Tt_out) = h(Tt_in) + (h(Tt_ideal) - h(Tt_in))/eta_is; polytropic: phi(Tt_out) = phi(Tt_in) + R ln(PR)/eta_p"
+    };
     step!(
         tr,
         "Tt",
         st.tt_out,
         Temperature,
-        "h(Tt_out) = h(Tt_in) + (h(Tt_ideal) - h(Tt_in))/eta_is; polytropic: phi(Tt_out) = phi(Tt_in) + R ln(PR)/eta_p",
+        how,
         [
             ("eta_is", st.eta_isentropic, Ratio),
             ("eta_p", st.eta_polytropic, Ratio)
@@ -1104,12 +1117,21 @@ fn turbine(
             ("R", g.r(), SpecificHeat)
         ]
     );
+    let how = match mode {
+        Expansion::Measured => {
+            "measured; eta_is = (h(Tt_in) - h(Tt_out))/(h(Tt_in) - h(Tt_ideal)), eta_p = (phi(Tt_in) - phi(Tt_out))/(R ln ER)"
+        }
+        Expansion::ShaftWork { .. } => {
+            "h(Tt_out) = h(Tt_in) - work; the ideal exit h(Tt_ideal) = h(Tt_in) - work/eta_is fixes ER"
+        }
+        Expansion::Design { .. } => "h(Tt_out) = h(Tt_in) - eta_is (h(Tt_in) - h(Tt_ideal))",
+    };
     step!(
         tr,
         "Tt",
         st.tt_out,
         Temperature,
-        "h(Tt_out) = h(Tt_in) - eta_is (h(Tt_in) - h(Tt_ideal))",
+        how,
         [
             ("eta_is", st.eta_isentropic, Ratio),
             ("eta_p", st.eta_polytropic, Ratio)

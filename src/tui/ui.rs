@@ -338,8 +338,18 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         }
         lines.push(Line::from(spans));
     }
+    let n_st = e.stations().len();
+    let rows_note = if n_st > visible {
+        format!(
+            ", rows {}-{} of {n_st}",
+            skip + 1,
+            (skip + visible).min(n_st)
+        )
+    } else {
+        String::new()
+    };
     let title = format!(
-        " stations ({} of {} columns{}) ",
+        " stations ({} of {} columns{}{rows_note}) ",
         shown.len(),
         keys.len(),
         if keys.len() > shown.len() {
