@@ -3,7 +3,7 @@
 //! Given values carry a `=` before the number and a bold attribute;
 //! values that could not be computed show `!!` (own process failed) or
 //! `..` (blocked upstream); undefined ones show `-`. The selection has a `>`
-//! marker as well as reverse video, so none of this relies on colour.
+//! marker as well as the reverse attribute, so none of this relies on colour.
 
 use super::app::{App, Focus, PanelRow, Popup, SetupRow, View, mode_label, station_problem};
 use super::keymap::COMMANDS;
