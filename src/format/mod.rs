@@ -73,7 +73,10 @@ fn syntax(e: ron::error::SpannedError) -> LoadError {
 
 /// Parse workbook text (version, syntax, givens, structure).
 pub fn parse(text: &str) -> Result<Workbook, LoadError> {
-    let opts = ron::Options::default();
+    // Hand-written files may give optional fields bare, with or without
+    // the `#![enable(implicit_some)]` line that saves write.
+    let opts =
+        ron::Options::default().with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
     if let Ok(p) = opts.from_str::<Probe>(text)
         && p.format > FORMAT_VERSION
     {

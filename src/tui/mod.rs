@@ -70,9 +70,6 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
         s.us_units = true;
     }
     let mut app = App::new(s);
-    if let Some(n) = note {
-        app.status = Some((n, true));
-    }
     match file {
         // A file that does not exist yet: start it from a demo and save there.
         // A name without an extension is more likely a mistyped command
@@ -97,6 +94,10 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
         }
         Some(f) => app.open(f)?,
         None => app.start_screen(),
+    }
+    // A bad settings file is said last, so opening a file does not hide it.
+    if let Some(n) = note {
+        app.status = Some((n, true));
     }
     install_signals();
     let prev = std::panic::take_hook();
