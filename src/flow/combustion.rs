@@ -72,13 +72,7 @@ pub fn exit_temperature(
     burner: &Burner,
 ) -> Result<Burn, FlowError> {
     burner.check()?;
-    if !(far_added.is_finite() && far_added >= 0.0) {
-        return Err(FlowError::BadInput {
-            what: "fuel-air ratio added",
-            value: far_added,
-            why: "it must be zero or positive",
-        });
-    }
+    super::non_negative("fuel-air ratio added", far_added)?;
     let out = inlet.burnt(inlet.far + far_added, burner.fuel)?;
     let e_in = sensible_energy(model, inlet, tt_in)?;
     let target = (e_in + burner.efficiency * far_added * burner.lhv) / out.mass_per_kg_air();

@@ -79,13 +79,7 @@ pub fn ratios(gas: &Gas, s: &FlowState) -> Result<[f64; 4], FlowError> {
 
 /// Exit state after a duct of friction parameter `fl = 4 f L / D`.
 pub fn friction(gas: &Gas, inlet: &FlowState, fl: f64) -> Result<FlowState, FlowError> {
-    if !(fl.is_finite() && fl >= 0.0) {
-        return Err(FlowError::BadInput {
-            what: "friction parameter 4fL/D",
-            value: fl,
-            why: "it must be zero or positive",
-        });
-    }
+    super::non_negative("friction parameter 4fL/D", fl)?;
     if inlet.mach <= 0.0 {
         return Err(FlowError::BadInput {
             what: "inlet Mach number",

@@ -290,13 +290,7 @@ pub fn prandtl_meyer(gas: &Gas, tt: f64, m: f64) -> Result<f64, FlowError> {
 
 /// Mach number for a Prandtl-Meyer angle (rad), any gas.
 pub fn mach_from_prandtl_meyer(gas: &Gas, tt: f64, nu: f64) -> Result<f64, FlowError> {
-    if !(nu.is_finite() && nu >= 0.0) {
-        return Err(FlowError::BadInput {
-            what: "Prandtl-Meyer angle",
-            value: nu,
-            why: "it must be zero or positive",
-        });
-    }
+    super::non_negative("Prandtl-Meyer angle", nu)?;
     if let Gas::Perfect(g) = gas {
         let gm = g.gamma_value();
         let nu_max = 0.5 * std::f64::consts::PI * (((gm + 1.0) / (gm - 1.0)).sqrt() - 1.0);
@@ -418,13 +412,7 @@ pub mod general {
         v: f64,
     ) -> Result<FlowState, FlowError> {
         check_totals(tt, pt)?;
-        if !(v.is_finite() && v >= 0.0) {
-            return Err(FlowError::BadInput {
-                what: "velocity",
-                value: v,
-                why: "it must be zero or positive",
-            });
-        }
+        crate::flow::non_negative("velocity", v)?;
         let at_t = gas.state(tt)?;
         let t = invert_h(gas, at_t.h - 0.5 * v * v, tt - 0.5 * v * v / at_t.cp)?;
         finish(gas, tt, pt, at_t.h, at_t.phi, t.min(tt))
@@ -439,13 +427,7 @@ pub mod general {
     ) -> Result<FlowState, FlowError> {
         positive("static temperature", t)?;
         positive("static pressure", p)?;
-        if !(v.is_finite() && v >= 0.0) {
-            return Err(FlowError::BadInput {
-                what: "velocity",
-                value: v,
-                why: "it must be zero or positive",
-            });
-        }
+        crate::flow::non_negative("velocity", v)?;
         let s = gas.state(t)?;
         let tt = invert_h(gas, s.h + 0.5 * v * v, t + 0.5 * v * v / s.cp)?;
         let st = gas.state(tt)?;

@@ -154,3 +154,16 @@ pub(crate) fn positive(what: &'static str, value: f64) -> Result<f64, FlowError>
         })
     }
 }
+
+/// Refuse non-finite or negative values.
+pub(crate) fn non_negative(what: &'static str, value: f64) -> Result<f64, FlowError> {
+    if value.is_finite() && value >= 0.0 {
+        Ok(value)
+    } else {
+        Err(FlowError::BadInput {
+            what,
+            value,
+            why: "it must be zero or positive",
+        })
+    }
+}

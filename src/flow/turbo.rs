@@ -190,13 +190,7 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
     eff: Efficiency,
 ) -> Result<Stage, FlowError> {
     let eta = eff.value()?;
-    if !(work.is_finite() && work >= 0.0) {
-        return Err(FlowError::BadInput {
-            what: "turbine work",
-            value: work,
-            why: "it must be zero or positive",
-        });
-    }
+    super::non_negative("turbine work", work)?;
     let s1 = gas.state(tt_in)?;
     let tt_out =
         invert_h(gas, s1.h - work, tt_in - work / s1.cp).map_err(|_| FlowError::BadInput {
@@ -229,13 +223,7 @@ pub fn compress_for_work<G: Thermo + ?Sized>(
     eff: Efficiency,
 ) -> Result<Stage, FlowError> {
     let eta = eff.value()?;
-    if !(work.is_finite() && work >= 0.0) {
-        return Err(FlowError::BadInput {
-            what: "compressor work",
-            value: work,
-            why: "it must be zero or positive",
-        });
-    }
+    super::non_negative("compressor work", work)?;
     let s1 = gas.state(tt_in)?;
     let tt_out = invert_h(gas, s1.h + work, tt_in + work / s1.cp)?;
     let s2 = gas.state(tt_out)?;
