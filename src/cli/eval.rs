@@ -204,8 +204,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     if a.store_results {
         book.keep_results = true;
         crate::format::refresh_results(&mut book, &engine);
-        crate::format::save(&a.file, &book)
-            .map_err(|e| Failure::bad(format!("cannot write {}: {e}", a.file.display())))?;
+        crate::format::save(&a.file, &book).map_err(Failure::bad)?;
     }
     let system: UnitSystem = a.units.into();
     let mut out = std::io::stdout().lock();

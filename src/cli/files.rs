@@ -90,7 +90,7 @@ pub(super) fn fmt(a: FmtArgs) -> Result<u8, Failure> {
             );
             code = code.max(2);
         } else if let Err(e) = format::write_atomic_with(f, canon.as_bytes(), || Ok(())) {
-            eprintln!("{}: cannot write: {e}", f.display());
+            eprintln!("{e}");
             code = 1;
         } else {
             println!("{}: rewritten", f.display());
@@ -139,8 +139,8 @@ pub(super) fn new(a: NewArgs) -> Result<u8, Failure> {
         )));
     }
     let book = format::parse(text).map_err(|e| Failure::bad(format!("template {name}: {e}")))?;
-    format::save(&file, &book)
-        .map_err(|e| Failure::bad(format!("cannot write {}: {e}", file.display())))?;
+    format::save_with(&file, &book, format::WriteOptions { force: a.force })
+        .map_err(Failure::bad)?;
     println!("{}: new workbook from template {name}", file.display());
     let _ = join::<String>(&[]);
     Ok(0)

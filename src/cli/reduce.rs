@@ -88,12 +88,22 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         monte_carlo: a.monte_carlo,
         batch: 4096,
     };
-    let out: Box<dyn Write> = match &a.out {
-        Some(p) => Box::new(std::io::BufWriter::new(
-            std::fs::File::create(p)
-                .map_err(|e| Failure::bad(format!("cannot write {}: {e}", p.display())))?,
-        )),
-        None => Box::new(std::io::BufWriter::new(std::io::stdout().lock())),
+    // The output never lands on an input (same file by device and inode,
+    // whatever its name) and goes through the atomic writer: a failed run
+    // leaves nothing behind.
+    let mut file = match &a.out {
+        Some(p) => {
+            crate::format::atomic::refuse_inputs(p, &[&a.file, &a.scans]).map_err(Failure::bad)?;
+            Some(std::io::BufWriter::new(
+                crate::format::AtomicFile::create(p, Default::default()).map_err(Failure::bad)?,
+            ))
+        }
+        None => None,
+    };
+    let mut stdout = std::io::BufWriter::new(std::io::stdout().lock());
+    let out: &mut dyn Write = match &mut file {
+        Some(f) => f,
+        None => &mut stdout,
     };
     let len = std::fs::metadata(&a.scans).map(|m| m.len()).unwrap_or(0);
     let bar = if std::io::stderr().is_terminal() && len > 1 << 20 {
@@ -181,7 +191,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     };
     let result = match a.format {
         OutFormat::Json => {
-            let mut w = out;
+            let w = out;
             let mut first = true;
             let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
             write!(w, "{{\"rows\": [").map_err(io)?;
@@ -228,6 +238,12 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         b.finish_and_clear();
     }
     let (_, rows) = result.map_err(Failure::bad)?;
+    if let Some(f) = file {
+        f.into_inner()
+            .map_err(|e| Failure::bad(format!("cannot write the output: {}", e.error())))?
+            .commit()
+            .map_err(Failure::bad)?;
+    }
     if rows == 0 {
         eprintln!(
             "stationwise: {}: no scans after the header",

@@ -8,8 +8,9 @@
 //!   optional fields left out when empty, four-space indentation. Loading
 //!   and saving an unchanged workbook is byte-identical, and changing one
 //!   given changes one line.
-//! * Saving writes a temporary file beside the target, syncs it and renames
-//!   it over the target, so a crash leaves either the old or the new file.
+//! * Saving goes through [`atomic`]: a unique temporary file beside the
+//!   target, synced and renamed over it, so a crash leaves either the old or
+//!   the new file; links followed, mode and owner kept.
 //! * Stored results (when the workbook asks for them) are rounded to six
 //!   significant figures so that only real changes show in a diff.
 
@@ -18,6 +19,9 @@ use crate::engine::{Engine, StationStatus};
 use std::fs;
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
+
+pub mod atomic;
+pub use atomic::{AtomicFile, WriteError, WriteOptions};
 
 /// The first line of every workbook file.
 pub const HEADER: &str =
@@ -115,44 +119,30 @@ pub fn to_text(book: &Workbook) -> String {
     }
 }
 
-/// Write bytes atomically: temporary file in the same folder, sync, rename.
-/// `before_rename` runs between the sync and the rename (tests use it to
-/// simulate a crash).
+/// Write bytes atomically (see [`atomic`]). `before_rename` runs between
+/// the sync and the rename (tests use it to simulate a crash).
 pub fn write_atomic_with(
     path: &Path,
     bytes: &[u8],
     before_rename: impl FnOnce() -> io::Result<()>,
-) -> io::Result<()> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().to_string())
-        .unwrap_or_else(|| "workbook".into());
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
-    let result = (|| {
-        let mut f = fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        drop(f);
-        before_rename()?;
-        fs::rename(&tmp, path)?;
-        if let Ok(d) = fs::File::open(&dir) {
-            let _ = d.sync_all();
-        }
-        Ok(())
-    })();
-    if result.is_err() {
-        let _ = fs::remove_file(&tmp);
-    }
-    result
+) -> Result<(), WriteError> {
+    let mut f = AtomicFile::create(path, WriteOptions::default())?;
+    f.write_all(bytes).map_err(|source| WriteError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    f.commit_with(before_rename)
 }
 
 /// Save a workbook atomically in canonical form.
-pub fn save(path: &Path, book: &Workbook) -> io::Result<()> {
-    write_atomic_with(path, to_text(book).as_bytes(), || Ok(()))
+pub fn save(path: &Path, book: &Workbook) -> Result<(), WriteError> {
+    save_with(path, book, WriteOptions::default())
+}
+
+/// Save a workbook atomically, with options (force over a read-only or
+/// hard-linked file).
+pub fn save_with(path: &Path, book: &Workbook, opts: WriteOptions) -> Result<(), WriteError> {
+    atomic::write(path, to_text(book).as_bytes(), opts)
 }
 
 /// Keys stored per station.

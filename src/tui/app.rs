@@ -93,6 +93,8 @@ pub enum Pending {
     Quit,
     /// Save over a file that changed on disk.
     SaveOver,
+    /// Save over a read-only or hard-linked file.
+    SaveForced(PathBuf),
     /// Load the recovery file of this workbook.
     LoadRecovery(PathBuf),
     /// Discard changes, then ask for a file to open.
@@ -836,16 +838,16 @@ impl App {
             });
             return;
         }
-        self.save_to(&path);
+        self.save_to(&path, format::WriteOptions::default());
     }
 
-    fn save_to(&mut self, path: &Path) {
+    fn save_to(&mut self, path: &Path, opts: format::WriteOptions) {
         let Some(engine) = self.engine.as_ref() else {
             return;
         };
         let mut book = engine.book().clone();
         format::refresh_results(&mut book, engine);
-        match format::save(path, &book) {
+        match format::save_with(path, &book, opts) {
             Ok(()) => {
                 self.path = Some(path.to_path_buf());
                 self.disk = stamp(path);
@@ -856,7 +858,22 @@ impl App {
                 }
                 self.info(format!("saved {}", path.display()));
             }
-            Err(e) => self.error(format!("cannot save {}: {e}", path.display())),
+            Err(
+                e @ (format::WriteError::ReadOnly { .. } | format::WriteError::HardLinked { .. }),
+            ) => {
+                let text = match &e {
+                    format::WriteError::ReadOnly { .. } => format!(
+                        "{} is read-only. Save anyway, keeping it read-only? (y/n)",
+                        path.display()
+                    ),
+                    _ => format!("{e}. Save anyway, as a separate copy under this name? (y/n)"),
+                };
+                self.popups.push(Popup::Confirm {
+                    text,
+                    then: Pending::SaveForced(path.to_path_buf()),
+                });
+            }
+            Err(e) => self.error(format!("cannot save: {e}")),
         }
     }
 
@@ -1661,6 +1678,7 @@ impl App {
         match then {
             Pending::Quit => self.quit = true,
             Pending::SaveOver => self.save(true),
+            Pending::SaveForced(p) => self.save_to(&p, format::WriteOptions { force: true }),
             Pending::OpenOther => self.ask_open(),
             Pending::LoadRecovery(p) => {
                 match std::fs::read_to_string(&p)
@@ -1699,7 +1717,7 @@ impl App {
                 if p.as_os_str().is_empty() {
                     self.error("no file name given");
                 } else {
-                    self.save_to(&p);
+                    self.save_to(&p, format::WriteOptions::default());
                 }
             }
             TextFor::Scans => {
