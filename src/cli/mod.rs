@@ -157,7 +157,10 @@ pub fn run() -> ExitCode {
         return match crate::tui::run(cli.file.as_deref(), opts) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => {
-                eprintln!("stationwise: {e}");
+                // The terminal may be gone (a dropped session): a failed
+                // write of the farewell line must not turn into a panic.
+                use std::io::Write;
+                let _ = writeln!(std::io::stderr(), "stationwise: {e}");
                 ExitCode::from(1)
             }
         };

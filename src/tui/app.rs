@@ -136,6 +136,9 @@ pub enum StartItem {
     File(PathBuf),
     /// A template by name.
     Template(&'static str),
+    /// The recovery file of a new or untitled workbook whose session was
+    /// cut, and the file it was to be saved as (None: untitled).
+    Recovery(PathBuf, Option<PathBuf>),
 }
 
 /// Popups, drawn as layers over the view; the top one takes the keys.
@@ -297,6 +300,14 @@ pub fn recovery_path(path: Option<&Path>) -> Option<PathBuf> {
     }
 }
 
+/// Write a recovery file (its folder made when missing); whether it worked.
+pub fn write_recovery_text(rp: &Path, text: &str) -> bool {
+    if let Some(d) = rp.parent() {
+        let _ = std::fs::create_dir_all(d);
+    }
+    format::atomic::write(rp, text.as_bytes(), format::WriteOptions { force: true }).is_ok()
+}
+
 impl App {
     /// An app with settings, on the start screen.
     pub fn new(settings: Settings) -> App {
@@ -340,6 +351,27 @@ impl App {
         let mut labels = Vec::new();
         // Starting a named new file: only the demos make sense.
         let new_file = self.path.as_ref().is_some_and(|p| !p.exists());
+        // Unsaved work of a cut session that had no file of its own yet
+        // comes first: the new file named on the command line, or the
+        // untitled workbook.
+        let mut targets = vec![None];
+        if new_file {
+            targets.insert(0, self.path.clone());
+        }
+        for target in targets {
+            if let Some(rp) = recovery_path(target.as_deref())
+                && rp.is_file()
+            {
+                labels.push(match &target {
+                    Some(t) => format!(
+                        "recover unsaved work for {} (interrupted session)",
+                        t.display()
+                    ),
+                    None => "recover the untitled workbook (interrupted session)".into(),
+                });
+                items.push(StartItem::Recovery(rp, target));
+            }
+        }
         for f in settings::recent()
             .into_iter()
             .filter(|f| f.exists() && !new_file)
@@ -409,6 +441,23 @@ impl App {
                 format!("ctrl-s saves it as {}", p.display())
             });
         self.info(format!("new workbook from the {name} demo ({target})"));
+        Ok(())
+    }
+
+    /// Load the recovery file of a new or untitled workbook as unsaved
+    /// changes (the recovery file is removed once loaded).
+    pub fn open_recovered(&mut self, rp: &Path, target: Option<PathBuf>) -> Result<(), String> {
+        let text = std::fs::read_to_string(rp).map_err(|e| format!("{}: {e}", rp.display()))?;
+        let book = format::parse(&text).map_err(|e| format!("{}: {e}", rp.display()))?;
+        self.engine = Some(Engine::new(book).map_err(|e| crate::present::join(&e))?);
+        self.path = target;
+        self.disk = None;
+        self.modified = true;
+        self.undo.clear();
+        self.redo.clear();
+        self.row = 0;
+        let _ = std::fs::remove_file(rp);
+        self.info("recovered the interrupted session's changes (save to keep them)");
         Ok(())
     }
 
@@ -877,18 +926,20 @@ impl App {
         }
     }
 
-    /// Write the recovery file (on a dropped session). Returns its path.
-    pub fn write_recovery(&self) -> Option<PathBuf> {
+    /// Where the recovery file would go and what it would hold, when there
+    /// are unsaved changes.
+    pub fn recovery_snapshot(&self) -> Option<(PathBuf, String)> {
         if !self.modified {
             return None;
         }
         let book = self.book()?;
-        let rp = recovery_path(self.path.as_deref())?;
-        if let Some(d) = rp.parent() {
-            let _ = std::fs::create_dir_all(d);
-        }
-        format::write_atomic_with(&rp, format::to_text(book).as_bytes(), || Ok(())).ok()?;
-        Some(rp)
+        Some((recovery_path(self.path.as_deref())?, format::to_text(book)))
+    }
+
+    /// Write the recovery file (on a dropped session). Returns its path.
+    pub fn write_recovery(&self) -> Option<PathBuf> {
+        let (rp, text) = self.recovery_snapshot()?;
+        write_recovery_text(&rp, &text).then_some(rp)
     }
 
     fn station_name(&self, i: usize) -> Option<String> {
@@ -1577,6 +1628,10 @@ impl App {
                         let r = match list.get(sel) {
                             Some(StartItem::File(f)) => self.open(f),
                             Some(StartItem::Template(t)) => self.open_template(t),
+                            Some(StartItem::Recovery(rp, target)) => {
+                                let (rp, target) = (rp.clone(), target.clone());
+                                self.open_recovered(&rp, target)
+                            }
                             None => Ok(()),
                         };
                         if let Err(e) = r {

@@ -9,6 +9,7 @@
 
 pub mod app;
 pub mod keymap;
+pub mod lifeline;
 pub mod plot;
 pub mod settings;
 pub mod ui;
@@ -21,25 +22,7 @@ use ratatui::Terminal;
 use ratatui::backend::CrosstermBackend;
 use std::io;
 use std::path::Path;
-use std::sync::atomic::{AtomicI32, Ordering};
 use std::time::Duration;
-
-static SIGNAL: AtomicI32 = AtomicI32::new(0);
-
-extern "C" fn on_signal(sig: libc::c_int) {
-    SIGNAL.store(sig, Ordering::SeqCst);
-}
-
-fn install_signals() {
-    #[cfg(unix)]
-    // SAFETY: the handler only stores to an atomic, which is
-    // async-signal-safe; the function pointer has the C signature required.
-    unsafe {
-        let h = on_signal as extern "C" fn(libc::c_int) as libc::sighandler_t;
-        libc::signal(libc::SIGHUP, h);
-        libc::signal(libc::SIGTERM, h);
-    }
-}
 
 fn restore() {
     let _ = terminal::disable_raw_mode();
@@ -99,7 +82,8 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
     if let Some(n) = note {
         app.status = Some((n, true));
     }
-    install_signals();
+    let mut line =
+        lifeline::Lifeline::start().map_err(|e| format!("cannot watch this terminal: {e}"))?;
     let prev = std::panic::take_hook();
     std::panic::set_hook(Box::new(move |info| {
         restore();
@@ -110,19 +94,25 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
         restore();
         return Err(format!("cannot use this terminal: {e}"));
     }
-    let result = event_loop(&mut app);
+    let backend = CrosstermBackend::new(io::stdout());
+    let mut term = match Terminal::new(backend) {
+        Ok(t) => t,
+        Err(e) => {
+            restore();
+            return Err(format!("cannot use this terminal: {e}"));
+        }
+    };
+    let result = event_loop(&mut app, &mut line, &mut term);
+    line.finish();
+    if result.is_err() {
+        // The terminal may be gone: ratatui's drop shows the cursor and
+        // prints (which panics on a dead terminal) when that fails.
+        std::mem::forget(term);
+    } else {
+        drop(term);
+    }
     restore();
-    if let Some(sig) = result
-        .as_ref()
-        .err()
-        .and_then(|e| e.strip_prefix("signal "))
-    {
-        let _ = sig;
-    }
-    match result {
-        Ok(()) => Ok(()),
-        Err(e) => Err(e),
-    }
+    result
 }
 
 fn on_cut(app: &App, why: &str) -> String {
@@ -132,24 +122,23 @@ fn on_cut(app: &App, why: &str) -> String {
     }
 }
 
-fn event_loop(app: &mut App) -> Result<(), String> {
-    let backend = CrosstermBackend::new(io::stdout());
-    let mut term = Terminal::new(backend).map_err(|e| e.to_string())?;
+type Term = Terminal<CrosstermBackend<io::Stdout>>;
+
+fn event_loop(app: &mut App, line: &mut lifeline::Lifeline, term: &mut Term) -> Result<(), String> {
+    use lifeline::Wake;
     let _ = term.clear();
     let mut redraw = true;
-    loop {
-        let sig = SIGNAL.load(Ordering::SeqCst);
-        if sig != 0 {
-            let m = on_cut(
-                app,
-                if sig == libc::SIGHUP {
-                    "session hung up"
-                } else {
-                    "terminated"
-                },
-            );
-            return Err(m);
+    let cut = |app: &App, wake: Wake| -> Option<String> {
+        match wake {
+            Wake::Signal(sig) if sig == signal_hook::consts::SIGHUP => {
+                Some(on_cut(app, "session hung up"))
+            }
+            Wake::Signal(_) => Some(on_cut(app, "terminated")),
+            Wake::Lost => Some(on_cut(app, "terminal closed")),
+            _ => None,
         }
+    };
+    loop {
         if app.quit {
             return Ok(());
         }
@@ -159,31 +148,43 @@ fn event_loop(app: &mut App) -> Result<(), String> {
             }
             redraw = false;
         }
-        match event::poll(Duration::from_millis(400)) {
-            Ok(true) => match event::read() {
+        // Every event that is ready is handled before one redraw, so a
+        // paste of thousands of characters costs one frame. The terminal is
+        // checked before each read: the terminal crate's reader never
+        // returns from a closed descriptor, so it must never be given one.
+        let mut handled = false;
+        loop {
+            if let Some(m) = cut(app, line.wait(Some(Duration::ZERO))) {
+                return Err(m);
+            }
+            match event::poll(Duration::ZERO) {
+                Ok(true) => {}
+                Ok(false) => break,
+                Err(e) => return Err(on_cut(app, &format!("terminal input lost ({e})"))),
+            }
+            match event::read() {
                 Ok(Event::Key(k)) if k.kind == KeyEventKind::Press => {
                     app.on_key(k);
-                    redraw = true;
+                    handled = true;
                 }
                 Ok(Event::Resize(_, _)) => {
                     let _ = term.autoresize();
-                    redraw = true;
+                    handled = true;
                 }
                 Ok(_) => {}
-                Err(e) => {
-                    if SIGNAL.load(Ordering::SeqCst) != 0 {
-                        continue;
-                    }
-                    return Err(on_cut(app, &format!("terminal input lost ({e})")));
-                }
-            },
-            Ok(false) => {}
-            Err(e) => {
-                if SIGNAL.load(Ordering::SeqCst) != 0 {
-                    continue;
-                }
-                return Err(on_cut(app, &format!("terminal input lost ({e})")));
+                Err(e) => return Err(on_cut(app, &format!("terminal input lost ({e})"))),
             }
+            if app.quit {
+                break;
+            }
+        }
+        if handled {
+            line.keep(app.recovery_snapshot());
+            redraw = true;
+            continue;
+        }
+        if let Some(m) = cut(app, line.wait(None)) {
+            return Err(m);
         }
     }
 }

@@ -10,6 +10,9 @@
 # 2. Hang-up: open a copy, make the same edit, send SIGHUP; the program must
 #    exit by itself, leave the alternate screen and raw mode, and write
 #    turbojet.ron.recovery beside the file. Reopening must offer the recovery.
+# 3. Closed terminal: closed_terminal.py closes the pty master under unsaved
+#    edits (saved, new and untitled workbooks; with and without a SIGHUP);
+#    the program must exit within 2 s and the next start must offer the work.
 #
 # Uses python3 and tui-drive / ttykit.py kept beside this script (copies of
 # the project's shared tools, so CI does not depend on them). Settings and
@@ -185,6 +188,44 @@ if "${DRIVE[@]}" --keys "wait:recovery y $TO_PR" --expect 'pressure_ratio = 12' 
 else
   fail "the recovered edit is not shown: $(cat "$TMP/hup/loaded.txt")"
 fi
+
+# ------------------------------------------------------------------ case 3
+# The terminal itself closes (a dropped SSH link): the pty master is closed
+# with unsaved edits, for a saved, a new and an untitled workbook, with the
+# program leading the terminal's session (it also gets SIGHUP) and as a
+# foreground job under a leader that ignores SIGHUP (it sees only the dead
+# terminal). Exit within 2 s, recovery file written, offered on reopen.
+for case in saved new untitled; do
+  for role in leader member; do
+    work="$TMP/closed-$case-$role"
+    if out=$(python3 "$HERE/closed_terminal.py" "$BIN" "$SHEET" "$work" "$case" "$role" 2>&1); then
+      pass "closed terminal: $out"
+    else
+      fail "closed terminal: $out"
+      continue
+    fi
+    case "$case" in
+      saved) reopen=("$work/turbojet.ron"); offer='recovery file' ;;
+      new) reopen=("$work/fresh.ron"); offer='recover unsaved work for' ;;
+      untitled) reopen=(); offer='recover the untitled workbook' ;;
+    esac
+    if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:$offer" --expect "$offer" \
+      --out "$work/reopen.txt" -- "$BIN" "${reopen[@]}" 2>/dev/null; then
+      pass "closed terminal ($case/$role): reopening offers the recovery"
+    else
+      fail "closed terminal ($case/$role): reopening does not offer it: $(cat "$work/reopen.txt")"
+    fi
+    if [ "$case" != saved ]; then
+      # Choosing the offer (the first entry) loads the edit, marked unsaved.
+      if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:$offer Enter $TO_PR" \
+        --expect 'pressure_ratio = 12' --out "$work/loaded.txt" -- "$BIN" "${reopen[@]}" 2>/dev/null; then
+        pass "closed terminal ($case/$role): the recovered edit is loaded"
+      else
+        fail "closed terminal ($case/$role): the recovered edit is not shown: $(cat "$work/loaded.txt")"
+      fi
+    fi
+  done
+done
 
 if [ "$failures" -ne 0 ]; then
   echo "e2e: $failures failed" >&2
