@@ -373,6 +373,46 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             });
         }
     }
+    // Flow conservation: a station's flow goes on into at most one process
+    // (a split divides it explicitly), and nothing takes flow from a
+    // nozzle's exit, which discharges to the ambient. Without these a
+    // station feeding two processes would count its flow twice.
+    let mut consumers: Vec<Vec<usize>> = vec![Vec::new(); book.stations.len()];
+    for (i, ins) in g.inputs.iter().enumerate() {
+        for &s in ins {
+            if !consumers[s].contains(&i) {
+                consumers[s].push(i);
+            }
+        }
+    }
+    for (s, c) in consumers.iter().enumerate() {
+        if c.len() > 1 {
+            let names: Vec<String> = c
+                .iter()
+                .map(|&i| format!("\"{}\"", book.processes[i].name))
+                .collect();
+            errors.push(BookError::Feed {
+                station: book.stations[s].name.clone(),
+                why: format!(
+                    "feeds {} processes ({}); its flow would be counted {} times. A station feeds one process: divide a stream with a split",
+                    c.len(),
+                    names.join(", "),
+                    c.len()
+                ),
+            });
+        }
+        if let (Some(&consumer), Some(prod)) = (c.first(), producer[s])
+            && matches!(book.processes[prod].kind, Kind::Nozzle(_))
+        {
+            errors.push(BookError::Feed {
+                station: book.stations[s].name.clone(),
+                why: format!(
+                    "is the exit of nozzle \"{}\", which discharges to the ambient; \"{}\" cannot take flow from it",
+                    book.processes[prod].name, book.processes[consumer].name
+                ),
+            });
+        }
+    }
     // Shaft-work turbines depend on the other machines on their shaft.
     let mut work_turbines: HashMap<usize, usize> = HashMap::new();
     for (i, p) in book.processes.iter().enumerate() {
