@@ -224,7 +224,10 @@ fn row(rel: Relation, g: &TableGas, m: f64) -> Result<Vec<Cell>, FlowError> {
 /// Parse a list of numbers: "0.5,1,2" or "FROM:TO:STEP" (inclusive of TO
 /// within a rounding tolerance), or a mix of both separated by commas.
 pub fn parse_list(text: &str) -> Result<Vec<f64>, String> {
-    let mut out = Vec::new();
+    // Every part is read and counted before any row is made, so the cap
+    // holds for the whole request, however it is spelt.
+    let mut parts: Vec<(f64, f64, usize)> = Vec::new();
+    let mut total = 0usize;
     for part in text.split(',') {
         let part = part.trim();
         if part.is_empty() {
@@ -242,8 +245,8 @@ pub fn parse_list(text: &str) -> Result<Vec<f64>, String> {
             }
         };
         let pieces: Vec<&str> = part.split(':').collect();
-        match pieces.as_slice() {
-            [one] => out.push(num(one)?),
+        let (a, s, n) = match pieces.as_slice() {
+            [one] => (num(one)?, 0.0, 0usize),
             [a, b, s] => {
                 let (a, b, s) = (num(a)?, num(b)?, num(s)?);
                 if s <= 0.0 {
@@ -252,19 +255,34 @@ pub fn parse_list(text: &str) -> Result<Vec<f64>, String> {
                 if b < a {
                     return Err(format!("\"{part}\": TO must not be below FROM"));
                 }
-                let n = ((b - a) / s + 1e-9).floor() as usize;
-                if n > 100_000 {
-                    return Err(format!("\"{part}\": more than 100000 rows"));
+                let steps = ((b - a) / s + 1e-9).floor();
+                if !steps.is_finite() || steps >= MAX_ROWS as f64 {
+                    return Err(format!("\"{part}\": more than {MAX_ROWS} rows"));
                 }
-                for i in 0..=n {
-                    out.push(a + s * i as f64);
-                }
+                (a, s, steps as usize)
             }
             _ => return Err(format!("\"{part}\": use a number or FROM:TO:STEP")),
+        };
+        total += n + 1;
+        if total > MAX_ROWS {
+            return Err(format!(
+                "{} rows or more asked for in all; at most {MAX_ROWS}",
+                total
+            ));
+        }
+        parts.push((a, s, n));
+    }
+    let mut out = Vec::with_capacity(total);
+    for (a, s, n) in parts {
+        for i in 0..=n {
+            out.push(a + s * i as f64);
         }
     }
     Ok(out)
 }
+
+/// Most rows one request may ask for.
+pub const MAX_ROWS: usize = 100_000;
 
 #[cfg(test)]
 mod tests {

@@ -415,13 +415,9 @@ fn bad_inputs_are_refused_or_become_problems_in_place() {
         (
             "process.compressor.pressure_ratio",
             "-3",
-            Problem("compressor", &["0", "2"]),
+            Refused("must be"),
         ),
-        (
-            "process.compressor.pressure_ratio",
-            "0",
-            Problem("compressor", &["0", "2"]),
-        ),
+        ("process.compressor.pressure_ratio", "0", Refused("must be")),
         (
             "process.compressor.pressure_ratio",
             "nan",
@@ -430,49 +426,29 @@ fn bad_inputs_are_refused_or_become_problems_in_place() {
         (
             "process.compressor.pressure_ratio",
             "1e9",
-            Problem("compressor", &["0", "2"]),
+            Refused("must be"),
         ),
         // A ratio accepts a bare number or %: 12 % is 0.12, below 1.
         (
             "process.compressor.pressure_ratio",
             "12 %",
-            Problem("compressor", &["0", "2"]),
+            Refused("must be"),
         ),
         // A ratio takes no temperature unit.
         ("process.compressor.pressure_ratio", "10 K", Refused("K")),
         ("process.compressor.pressure_ratio", "", Refused("no value")),
-        (
-            "process.compressor.efficiency",
-            "1.5",
-            Problem("compressor", &["0", "2"]),
-        ),
-        (
-            "process.compressor.efficiency",
-            "0",
-            Problem("compressor", &["0", "2"]),
-        ),
-        ("process.intake.recovery", "1.2", Problem("intake", &["0"])),
-        ("process.intake.recovery", "-0.5", Problem("intake", &["0"])),
-        (
-            "process.combustor.lhv",
-            "0",
-            Problem("combustor", &["0", "2", "3"]),
-        ),
-        (
-            "process.combustor.lhv",
-            "-43 MJ/kg",
-            Problem("combustor", &["0", "2", "3"]),
-        ),
+        ("process.compressor.efficiency", "1.5", Refused("must be")),
+        ("process.compressor.efficiency", "0", Refused("must be")),
+        ("process.intake.recovery", "1.2", Refused("must be")),
+        ("process.intake.recovery", "-0.5", Refused("must be")),
+        ("process.combustor.lhv", "0", Refused("must be")),
+        ("process.combustor.lhv", "-43 MJ/kg", Refused("must be")),
         (
             "process.combustor.exit_tt",
             "50 K",
             Problem("combustor", &["0", "2", "3"]),
         ),
-        (
-            "process.combustor.exit_tt",
-            "0 K",
-            Problem("combustor", &["0", "2", "3"]),
-        ),
+        ("process.combustor.exit_tt", "0 K", Refused("must be")),
         (
             "process.combustor.pressure_loss",
             "80 %",
@@ -483,34 +459,14 @@ fn bad_inputs_are_refused_or_become_problems_in_place() {
             "nan",
             Refused("not a finite number"),
         ),
-        (
-            "process.freestream.w",
-            "-20 kg/s",
-            Problem("freestream", &[]),
-        ),
-        ("process.freestream.w", "0 kg/s", Problem("freestream", &[])),
+        ("process.freestream.w", "-20 kg/s", Refused("must be")),
+        ("process.freestream.w", "0 kg/s", Refused("must be")),
         ("process.freestream.w", "20 K", Refused("K")),
-        (
-            "process.turbine.efficiency",
-            "1.5",
-            Problem("turbine", &["0", "2", "3", "4"]),
-        ),
+        ("process.turbine.efficiency", "1.5", Refused("must be")),
         // The turbine reads the shaft's mechanical efficiency for its work.
-        (
-            "shaft.spool.mechanical_efficiency",
-            "0",
-            Problem("turbine", &["0", "2", "3", "4"]),
-        ),
-        (
-            "process.nozzle.cv",
-            "0",
-            Problem("nozzle", &["0", "2", "3", "4", "5"]),
-        ),
-        (
-            "process.nozzle.cd",
-            "2",
-            Problem("nozzle", &["0", "2", "3", "4", "5"]),
-        ),
+        ("shaft.spool.mechanical_efficiency", "0", Refused("must be")),
+        ("process.nozzle.cv", "0", Refused("must be")),
+        ("process.nozzle.cd", "2", Refused("must be")),
         ("process.nosuch.w", "20 kg/s", Refused("process.nosuch.w")),
         ("station.3.tt", "600 K", Refused("station.3.tt")),
     ];

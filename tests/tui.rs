@@ -796,7 +796,10 @@ fn the_selection_is_reversed_and_marked() {
 #[test]
 fn a_failed_station_shows_its_problem() {
     let (mut app, _) = open_with(ascii());
-    press(&mut app, &format!("{TO_PR} Enter ctrl-u 1 0 0 0 0 Enter"));
+    press(
+        &mut app,
+        &format!("{TO_PR} Enter ctrl-u 1 0 0 0 Enter j Enter ctrl-u 0 . 0 5 Enter"),
+    );
     assert_eq!(app.engine.as_ref().unwrap().problems().len(), 1);
     assert!(status(&app).1, "an edit that leaves a problem is an error");
     let b = render_buffer(&app, 80, 24);
@@ -807,10 +810,13 @@ fn a_failed_station_shows_its_problem() {
     assert!(col_of(&b, y, "..") > 0, "downstream is blocked");
     // The reason is in the panel, whole.
     let s = render_text(&app, 80, 24);
-    assert!(s.contains("outside the sensible"), "{s}");
+    assert!(s.contains("6000 K"), "{s}");
     // In colour, problem cells are red.
     let (mut app, _) = open();
-    press(&mut app, &format!("{TO_PR} Enter ctrl-u 1 0 0 0 0 Enter"));
+    press(
+        &mut app,
+        &format!("{TO_PR} Enter ctrl-u 1 0 0 0 Enter j Enter ctrl-u 0 . 0 5 Enter"),
+    );
     let b = render_buffer(&app, 80, 24);
     let y = row_of(&b, "> 3          compressor");
     assert_eq!(b[(col_of(&b, y, "!!"), y)].fg, Color::Red);
@@ -923,7 +929,10 @@ fn snapshot_edit_refused() {
 
 #[test]
 fn snapshot_problem() {
-    snap_all("problem", &format!("{TO_PR} Enter ctrl-u 1 0 0 0 0 Enter"));
+    snap_all(
+        "problem",
+        &format!("{TO_PR} Enter ctrl-u 1 0 0 0 Enter j Enter ctrl-u 0 . 0 5 Enter"),
+    );
 }
 
 #[test]

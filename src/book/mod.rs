@@ -11,6 +11,7 @@
 //! The model derives serde for the file format (`crate::format` owns
 //! reading and writing); it knows nothing of terminals or the engine.
 
+pub mod bounds;
 pub mod paths;
 
 pub use paths::{Path, PathError};
@@ -88,6 +89,29 @@ impl Given {
         self.si = units::parse(&self.text, q, field)?.si;
         self.varied = false;
         Ok(())
+    }
+}
+
+impl GivenField<'_> {
+    /// Check a value for this field against its range: every range when a
+    /// user states it (`stated`), only the hard ones when a sweep, goal or
+    /// scan sets it (see [`bounds`]).
+    pub fn check(&self, si: f64, text: &str, stated: bool) -> Result<(), BookError> {
+        match bounds::of(self.scope, self.key, self.quantity) {
+            Some(b) if (stated || b.hard) && !b.holds(si) => Err(BookError::OutOfRange {
+                field: self.path(),
+                text: text.to_string(),
+                range: b.describe(self.quantity),
+                why: b.why,
+            }),
+            _ if !si.is_finite() => Err(BookError::OutOfRange {
+                field: self.path(),
+                text: text.to_string(),
+                range: "a finite number".into(),
+                why: "not a number or infinite",
+            }),
+            _ => Ok(()),
+        }
     }
 }
 
@@ -713,6 +737,18 @@ pub enum BookError {
     /// A structural rule broken.
     #[error("{0}")]
     Rule(String),
+    /// A given outside its physical range.
+    #[error("{field} \"{text}\": must be {range} ({why})")]
+    OutOfRange {
+        /// The given's path.
+        field: String,
+        /// The value as typed (or its SI value when set by a program).
+        text: String,
+        /// The range in words, with units.
+        range: String,
+        /// Why the range is what it is.
+        why: &'static str,
+    },
     /// Format version newer than this build.
     #[error(
         "this workbook is format {found}; this build reads format {FORMAT_VERSION} (update stationwise)"
@@ -934,6 +970,8 @@ impl Workbook {
         self.visit_givens(&mut |f| {
             if let Err(e) = f.given.resolve(f.quantity, &f.path()) {
                 errors.push(e.into());
+            } else if let Err(e) = f.check(f.given.si, &f.given.text, true) {
+                errors.push(e);
             }
         });
         // Goal values take the quantity of their target.
@@ -984,10 +1022,13 @@ impl Workbook {
         self.visit_givens(&mut |f| {
             if f.is(path) {
                 result = Some(match Given::parse(text, f.quantity, &f.path()) {
-                    Ok(g) => {
-                        *f.given = g;
-                        Ok(())
-                    }
+                    Ok(g) => match f.check(g.si, &g.text, true) {
+                        Ok(()) => {
+                            *f.given = g;
+                            Ok(())
+                        }
+                        Err(e) => Err(e),
+                    },
                     Err(e) => Err(e.into()),
                 });
             }

@@ -38,6 +38,16 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let offset = units::parse(&offset_text, Quantity::TemperatureDifference, "--offset")
         .map_err(Failure::bad)?
         .si;
+    if let Some(b) = crate::book::bounds::of("ambient", "offset", Quantity::TemperatureDifference)
+        && !b.holds(offset)
+    {
+        return Err(Failure::bad(format!(
+            "--offset {}: must be {} ({})",
+            a.offset.trim(),
+            b.describe(Quantity::TemperatureDifference),
+            b.why
+        )));
+    }
     let kind = if a.geometric {
         AltitudeKind::Geometric
     } else {

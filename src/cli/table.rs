@@ -99,6 +99,20 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             "give rows with --mach LIST, --area-ratio LIST --branch B, or --p-pt LIST",
         ));
     };
+    for (key, v, q) in [
+        ("gamma", a.gamma, Quantity::Ratio),
+        ("r", a.gamma.map(|_| a.r), Quantity::SpecificHeat),
+    ] {
+        if let (Some(v), Some(b)) = (v, crate::book::bounds::of("gas", key, q))
+            && !b.holds(v)
+        {
+            return Err(Failure::bad(format!(
+                "--{key} {v}: must be {} ({})",
+                b.describe(q),
+                b.why
+            )));
+        }
+    }
     let gas = match (a.gamma, a.gas) {
         (Some(g), _) => Gas::Perfect(PerfectGas::new(g, a.r).map_err(Failure::bad)?),
         (None, Some(GasArg::Air)) => Gas::Thermal(Composition::dry_air().mixture()),

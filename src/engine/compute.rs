@@ -1344,6 +1344,10 @@ fn nozzle(
         ("npr", npr),
         ("choked", if choked { 1.0 } else { 0.0 }),
     ];
+    // An unchoked nozzle has no sonic throat: the figure is absent, not NaN.
+    if !choked {
+        r.figures.retain(|(k, _)| *k != "throat_area");
+    }
     Ok(r)
 }
 

@@ -539,14 +539,19 @@ impl Engine {
     /// Set a given's SI value directly (sweeps, goals, uncertainty), keeping
     /// its text; recompute what depends on it.
     pub fn set_si(&mut self, path: &str, si: f64) -> Result<(), BookError> {
-        let mut found = false;
+        let mut found = None;
         self.book.visit_givens(&mut |f| {
             if f.is(path) {
-                f.given.set_si(si);
-                found = true;
+                let r = f.check(si, &crate::report::sig(si, 6), false);
+                if r.is_ok() {
+                    f.given.set_si(si);
+                }
+                found = Some(r);
             }
         });
-        if !found {
+        if let Some(r) = found {
+            r?;
+        } else {
             return Err(BookError::Unknown {
                 whose: "the change".into(),
                 what: "given",
@@ -561,14 +566,21 @@ impl Engine {
     /// Set several givens' SI values at once, then recompute once.
     pub fn set_si_many(&mut self, values: &[(&str, f64)]) -> Result<(), BookError> {
         for (path, si) in values {
-            let mut found = false;
+            let mut found = None;
             self.book.visit_givens(&mut |f| {
                 if f.is(path) {
-                    f.given.set_si(*si);
-                    found = true;
+                    let r = f.check(*si, &crate::report::sig(*si, 6), false);
+                    if r.is_ok() {
+                        f.given.set_si(*si);
+                    }
+                    found = Some(r);
                 }
             });
-            if !found {
+            if let Some(Err(e)) = found {
+                self.recompute();
+                return Err(e);
+            }
+            if found.is_none() {
                 self.recompute();
                 return Err(BookError::Unknown {
                     whose: "the change".into(),
@@ -1101,7 +1113,8 @@ impl Engine {
             "pt" => Some(v.pt),
             "w" => Some(v.w),
             "far" => Some(v.comp.far),
-            "area" => v.area,
+            // A stream at rest has no finite capture area: not defined there.
+            "area" => v.area.filter(|a| a.is_finite()),
             "t" => f.map(|f| f.t),
             "p" => f.map(|f| f.p),
             "rho" => f.map(|f| f.rho),
@@ -1119,7 +1132,10 @@ impl Engine {
                         - g.r() * (v.pt / atmosphere::SEA_LEVEL_PRESSURE_PA).ln(),
                 )
             }
-            "flow_function" => v.area.map(|a| v.w * v.tt.sqrt() / (a * v.pt)),
+            "flow_function" => v
+                .area
+                .filter(|a| a.is_finite())
+                .map(|a| v.w * v.tt.sqrt() / (a * v.pt)),
             "gamma" => gas()?.gamma(f.map_or(v.tt, |f| f.t)).ok(),
             _ => None,
         }
