@@ -150,6 +150,81 @@ fn text_cell(c: &Cell) -> String {
     }
 }
 
+/// Column widths and alignment of aligned text for a table's rows.
+fn text_layout(table: &Table, cells: &[Vec<String>]) -> (Vec<usize>, Vec<bool>) {
+    let widths: Vec<usize> = table
+        .columns
+        .iter()
+        .enumerate()
+        .map(|(i, c)| {
+            let w = cells
+                .iter()
+                .map(|r| r.get(i).map_or(0, |s| s.chars().count()))
+                .max()
+                .unwrap_or(0);
+            w.max(c.label.chars().count())
+                .max(c.unit.chars().count() + 2)
+        })
+        .collect();
+    // Text columns (names, problems) read better left-aligned.
+    let text_col: Vec<bool> = (0..table.columns.len())
+        .map(|i| {
+            table
+                .rows
+                .iter()
+                .any(|r| matches!(r.get(i), Some(Cell::Text(_))))
+                && !table
+                    .rows
+                    .iter()
+                    .any(|r| matches!(r.get(i), Some(Cell::Num(_))))
+        })
+        .collect();
+    (widths, text_col)
+}
+
+fn text_line(parts: &[String], widths: &[usize], left: &[bool]) -> String {
+    parts
+        .iter()
+        .zip(widths)
+        .zip(left)
+        .map(|((s, w), left)| {
+            if *left {
+                format!("{s:<w$}")
+            } else {
+                format!("{s:>w$}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("  ")
+        .trim_end()
+        .to_string()
+}
+
+fn text_header(
+    table: &Table,
+    widths: &[usize],
+    left: &[bool],
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    let labels: Vec<String> = table.columns.iter().map(|c| c.label.clone()).collect();
+    writeln!(out, "{}", text_line(&labels, widths, left))?;
+    if table.columns.iter().any(|c| !c.unit.is_empty()) {
+        let units: Vec<String> = table
+            .columns
+            .iter()
+            .map(|c| {
+                if c.unit.is_empty() {
+                    String::new()
+                } else {
+                    format!("[{}]", c.unit)
+                }
+            })
+            .collect();
+        writeln!(out, "{}", text_line(&units, widths, left))?;
+    }
+    Ok(())
+}
+
 impl Printer for TextPrinter {
     fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
         let cells: Vec<Vec<String>> = table
@@ -157,76 +232,100 @@ impl Printer for TextPrinter {
             .iter()
             .map(|r| r.iter().map(text_cell).collect())
             .collect();
-        let widths: Vec<usize> = table
-            .columns
-            .iter()
-            .enumerate()
-            .map(|(i, c)| {
-                let w = cells
-                    .iter()
-                    .map(|r| r.get(i).map_or(0, |s| s.chars().count()))
-                    .max()
-                    .unwrap_or(0);
-                w.max(c.label.chars().count())
-                    .max(c.unit.chars().count() + 2)
-            })
-            .collect();
-        // Text columns (names, problems) read better left-aligned.
-        let text_col: Vec<bool> = (0..table.columns.len())
-            .map(|i| {
-                table
-                    .rows
-                    .iter()
-                    .any(|r| matches!(r.get(i), Some(Cell::Text(_))))
-                    && !table
-                        .rows
-                        .iter()
-                        .any(|r| matches!(r.get(i), Some(Cell::Num(_))))
-            })
-            .collect();
-        let line = |parts: Vec<String>| -> String {
-            parts
-                .iter()
-                .zip(&widths)
-                .zip(&text_col)
-                .map(|((s, w), left)| {
-                    if *left {
-                        format!("{s:<w$}")
-                    } else {
-                        format!("{s:>w$}")
-                    }
-                })
-                .collect::<Vec<_>>()
-                .join("  ")
-                .trim_end()
-                .to_string()
-        };
-        writeln!(
-            out,
-            "{}",
-            line(table.columns.iter().map(|c| c.label.clone()).collect())
-        )?;
-        if table.columns.iter().any(|c| !c.unit.is_empty()) {
-            writeln!(
-                out,
-                "{}",
-                line(
-                    table
-                        .columns
-                        .iter()
-                        .map(|c| if c.unit.is_empty() {
-                            String::new()
-                        } else {
-                            format!("[{}]", c.unit)
-                        })
-                        .collect()
-                )
-            )?;
-        }
+        let (widths, left) = text_layout(table, &cells);
+        text_header(table, &widths, &left, out)?;
         for r in cells {
-            writeln!(out, "{}", line(r))?;
+            writeln!(out, "{}", text_line(&r, &widths, &left))?;
         }
         Ok(())
+    }
+}
+
+/// A table written in pieces, for outputs too long to hold (a sweep of
+/// millions of points): each [`Streamer::chunk`] is a table with the same
+/// columns and the next rows. Memory is that of one chunk. Text takes its
+/// column widths from the first chunk; CSV writes one header; JSON writes
+/// one object `{"rows": [...]}` with a row per line.
+pub struct Streamer {
+    format: Format,
+    layout: Option<(Vec<usize>, Vec<bool>)>,
+    rows: u64,
+}
+
+impl Streamer {
+    /// A streamer for a format.
+    pub fn new(format: Format) -> Streamer {
+        Streamer {
+            format,
+            layout: None,
+            rows: 0,
+        }
+    }
+
+    /// Write the next rows (`chunk.rows`) of the table.
+    pub fn chunk(&mut self, chunk: &Table, out: &mut dyn Write) -> io::Result<()> {
+        let first = self.rows == 0 && self.layout.is_none();
+        match self.format {
+            Format::Text => {
+                let cells: Vec<Vec<String>> = chunk
+                    .rows
+                    .iter()
+                    .map(|r| r.iter().map(text_cell).collect())
+                    .collect();
+                if self.layout.is_none() {
+                    let l = text_layout(chunk, &cells);
+                    text_header(chunk, &l.0, &l.1, out)?;
+                    self.layout = Some(l);
+                }
+                if let Some((w, l)) = &self.layout {
+                    for r in cells {
+                        writeln!(out, "{}", text_line(&r, w, l))?;
+                    }
+                }
+            }
+            Format::Csv => {
+                let mut w = csv::Writer::from_writer(&mut *out);
+                if first {
+                    w.write_record(chunk.columns.iter().map(|c| c.key.as_str()))?;
+                    self.layout = Some((Vec::new(), Vec::new()));
+                }
+                for r in &chunk.rows {
+                    w.write_record(r.iter().map(|c| match c {
+                        Cell::Num(v) => format!("{v}"),
+                        Cell::Text(t) => t.clone(),
+                        Cell::Empty => String::new(),
+                    }))?;
+                }
+                w.flush()?;
+            }
+            Format::Json => {
+                if first {
+                    write!(out, "{{\"rows\": [")?;
+                    self.layout = Some((Vec::new(), Vec::new()));
+                }
+                for (i, r) in chunk.rows.iter().enumerate() {
+                    let sep = if self.rows == 0 && i == 0 {
+                        "\n"
+                    } else {
+                        ",\n"
+                    };
+                    write!(out, "{sep}{}", row_json(&chunk.columns, r))?;
+                }
+            }
+        }
+        self.rows += chunk.rows.len() as u64;
+        Ok(())
+    }
+
+    /// End the output (closes the JSON object).
+    pub fn finish(&mut self, out: &mut dyn Write) -> io::Result<()> {
+        if self.format == Format::Json {
+            if self.layout.is_none() {
+                write!(out, "{{\"rows\": [")?;
+            }
+            writeln!(out, "\n]}}")?;
+        }
+        out.flush()
     }
 }
 

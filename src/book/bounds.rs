@@ -5,8 +5,8 @@
 //! or sweep may cross (an absolute temperature above 0 K, a mass flow below
 //! a ceiling no facility reaches); it is checked on every value set,
 //! including those a sweep, goal or scan puts in. A *design* range holds
-//! for what a user states as a design given (an efficiency between 0 and
-//! 1) but not for a value measured or perturbed around it: a measured
+//! for what a user states as a design given (an efficiency from 0 to 1)
+//! but not for a value measured or perturbed around it: a measured
 //! efficiency of 1.002 is scatter, not an error, and an uncertainty
 //! calculation perturbs an efficiency of 1 both ways.
 //!

@@ -128,6 +128,12 @@ impl Failure {
     }
 }
 
+impl From<crate::book::BookError> for Failure {
+    fn from(e: crate::book::BookError) -> Self {
+        Failure::bad(e)
+    }
+}
+
 /// Print a table to stdout in a format.
 pub(crate) fn print_table(t: &crate::report::Table, format: OutFormat) -> Result<(), Failure> {
     let mut out = std::io::stdout().lock();

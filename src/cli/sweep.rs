@@ -1,7 +1,7 @@
 //! `stationwise sweep`: derived values over a range of one given.
 
 use super::common::{self, quantity, shown, unit_label};
-use super::{Failure, OutFormat, Units, print_table};
+use super::{Failure, OutFormat, Units};
 use crate::engine::sweep;
 use crate::report::{Cell, Column, Table};
 use crate::units::{self, UnitSystem};
@@ -68,8 +68,6 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         .map(|s| s.trim().to_string())
         .filter(|s| !s.is_empty())
         .collect();
-    let values = sweep::linspace(from, to, steps);
-    let rows = sweep::run_checked(&engine, path, &values, &report).map_err(Failure::bad)?;
     let system: UnitSystem = if a.format == OutFormat::Json {
         UnitSystem::Si
     } else {
@@ -79,28 +77,53 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     for r in &report {
         cols.push(Column::new(r, r, &unit_label(quantity(r), system)));
     }
-    // Say why a point has no value (choking, a rich mixture, ...).
-    let any_problem = rows.iter().any(|(_, p)| p.is_some());
-    if any_problem {
-        cols.push(Column::new("problem", "problem", ""));
+    // Say why a point has no value (choking, a rich mixture, ...): the
+    // column is always there, since rows are written before the last point
+    // is known.
+    cols.push(Column::new("problem", "problem", ""));
+    let mut head = Table::new(cols);
+    if a.format == OutFormat::Csv {
+        crate::present::keys_with_units(&mut head);
     }
-    let mut t = Table::new(cols);
     // JSON carries plain SI (K, Pa, N, kg/s, W, rad/s); text and CSV the display units.
     let json = a.format == OutFormat::Json;
     let conv = |v: f64, q| if json { v } else { shown(v, q, system) };
-    for ((x, vals), problem) in rows {
-        let mut row = vec![Cell::from(conv(x, q))];
-        for (r, v) in report.iter().zip(vals) {
-            row.push(Cell::from(v.map(|v| conv(v, quantity(r)))));
-        }
-        if any_problem {
-            row.push(problem.map_or(Cell::Empty, Cell::from));
-        }
-        t.rows.push(row);
+    let mut streamer = crate::report::Streamer::new(a.format.into());
+    let mut out = std::io::BufWriter::new(std::io::stdout().lock());
+    let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
+    let (mut failed, mut total) = (0u64, 0u64);
+    sweep::stream(
+        &engine,
+        path,
+        steps + 1,
+        |i| sweep::step_value(from, to, steps, i),
+        &report,
+        sweep::BATCH,
+        |rows| -> Result<(), Failure> {
+            let mut t = Table::new(Vec::new());
+            t.columns = head.columns.clone();
+            for ((x, vals), problem) in rows {
+                total += 1;
+                failed += u64::from(problem.is_some());
+                let mut row = vec![Cell::from(conv(x, q))];
+                for (r, v) in report.iter().zip(vals) {
+                    row.push(Cell::from(v.map(|v| conv(v, quantity(r)))));
+                }
+                row.push(problem.map_or(Cell::Empty, Cell::from));
+                t.rows.push(row);
+            }
+            streamer.chunk(&t, &mut out).map_err(io)
+        },
+    )?;
+    streamer.finish(&mut out).map_err(io)?;
+    drop(out);
+    if failed > 0 {
+        use std::io::Write;
+        let _ = writeln!(
+            std::io::stderr(),
+            "stationwise: {failed} of {total} points had a problem (see the problem column)"
+        );
+        return Ok(2);
     }
-    if a.format == OutFormat::Csv {
-        crate::present::keys_with_units(&mut t);
-    }
-    print_table(&t, a.format)?;
     Ok(0)
 }

@@ -3,7 +3,9 @@
 //! Points are split into contiguous chunks, one per worker thread (rayon);
 //! each worker clones the engine once and walks its chunk with incremental
 //! recomputes, so only the part of the workbook downstream of the varied
-//! given reruns per point. Rows come back in the order of the values.
+//! given reruns per point. Rows come back in the order of the values, in
+//! batches ([`stream`]) so that a sweep of millions of points runs in the
+//! memory of one batch.
 
 use super::Engine;
 use crate::book::BookError;
@@ -33,6 +35,39 @@ pub fn run_checked(
     values: &[f64],
     report: &[String],
 ) -> Result<Vec<(Row, Option<String>)>, BookError> {
+    let mut out = Vec::with_capacity(values.len());
+    stream(
+        engine,
+        vary,
+        values.len(),
+        |i| values[i],
+        report,
+        BATCH,
+        |rows| {
+            out.extend(rows);
+            Ok::<(), BookError>(())
+        },
+    )?;
+    Ok(out)
+}
+
+/// Points per batch of [`stream`].
+pub const BATCH: usize = 8192;
+
+/// Run a sweep of `count` points (`value_at(i)` is the i-th value) in
+/// batches of `batch`: each batch is computed in parallel and handed to
+/// `sink` in order, so memory is that of one batch however long the sweep.
+/// A value the given cannot take (outside its range) is a problem of that
+/// point, never a silent reuse of the previous value.
+pub fn stream<E: From<BookError>>(
+    engine: &Engine,
+    vary: &str,
+    count: usize,
+    value_at: impl Fn(usize) -> f64 + Sync,
+    report: &[String],
+    batch: usize,
+    mut sink: impl FnMut(Vec<(Row, Option<String>)>) -> Result<(), E>,
+) -> Result<(), E> {
     for r in report {
         engine
             .value(r)
@@ -43,28 +78,49 @@ pub fn run_checked(
             whose: "the sweep".into(),
             what: "given",
             name: vary.to_string(),
-        });
+        }
+        .into());
     }
     let threads = rayon::current_num_threads().max(1);
-    let chunk = values.len().div_ceil(threads).max(1);
-    let rows: Vec<Vec<(Row, Option<String>)>> = values
-        .par_chunks(chunk)
-        .map(|part| {
-            let mut e = engine.clone();
-            part.iter()
-                .map(|&x| {
-                    let _ = e.set_si(vary, x);
-                    let vals = report.iter().map(|r| e.value(r).ok().flatten()).collect();
-                    let problem = e
-                        .problems()
-                        .first()
-                        .map(|p| format!("{}: {}", p.place, p.message));
-                    ((x, vals), problem)
-                })
-                .collect()
-        })
-        .collect();
-    Ok(rows.into_iter().flatten().collect())
+    let batch = batch.max(1);
+    let mut start = 0;
+    while start < count {
+        let end = (start + batch).min(count);
+        let chunk = (end - start).div_ceil(threads).max(1);
+        let idx: Vec<usize> = (start..end).collect();
+        let rows: Vec<Vec<(Row, Option<String>)>> = idx
+            .par_chunks(chunk)
+            .map(|part| {
+                let mut e = engine.clone();
+                part.iter()
+                    .map(|&i| {
+                        let x = value_at(i);
+                        if let Err(err) = e.set_si(vary, x) {
+                            return ((x, vec![None; report.len()]), Some(err.to_string()));
+                        }
+                        let vals = report.iter().map(|r| e.value(r).ok().flatten()).collect();
+                        let problem = e
+                            .problems()
+                            .first()
+                            .map(|p| format!("{}: {}", p.place, p.message));
+                        ((x, vals), problem)
+                    })
+                    .collect()
+            })
+            .collect();
+        sink(rows.into_iter().flatten().collect())?;
+        start = end;
+    }
+    Ok(())
+}
+
+/// The i-th of `n` equal steps from `from` to `to` inclusive.
+pub fn step_value(from: f64, to: f64, steps: usize, i: usize) -> f64 {
+    if steps == 0 {
+        from
+    } else {
+        from + (to - from) * i as f64 / steps as f64
+    }
 }
 
 /// `n` equal steps from `from` to `to` inclusive (n + 1 values).
@@ -73,6 +129,6 @@ pub fn linspace(from: f64, to: f64, steps: usize) -> Vec<f64> {
         return vec![from];
     }
     (0..=steps)
-        .map(|i| from + (to - from) * i as f64 / steps as f64)
+        .map(|i| step_value(from, to, steps, i))
         .collect()
 }
