@@ -50,10 +50,7 @@ fn scans(n: usize) -> String {
 
 /// Reduce the text; the number of scans reduced without a problem.
 fn run(engine: &Engine, text: &str, report: &[String], opts: &Options) -> u64 {
-    let mut reader = csv::ReaderBuilder::new()
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
+    let mut reader = reduce::ScanReader::from_text(text).unwrap();
     let mut good = 0u64;
     reduce::reduce(
         engine,

@@ -64,18 +64,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     // Check the channel map against the header and the report paths before
     // anything is written, so a failed run leaves no half output.
     {
-        let header: Vec<String> = reader
-            .headers()
-            .map_err(|e| Failure::bad(format!("{}: {e}", a.scans.display())))?
-            .iter()
-            .map(|s| s.trim().to_string())
-            .collect();
-        if header.iter().all(|h| h.is_empty()) {
-            return Err(Failure::bad(format!(
-                "{}: empty file: no header row",
-                a.scans.display()
-            )));
-        }
+        let header: Vec<String> = reader.header().to_vec();
         Plan::new(engine.book(), &header).map_err(Failure::bad)?;
         for r in &report {
             engine
@@ -132,11 +121,13 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         }
     }
     header.push("problems".into());
+    header.push("flags".into());
     let mut bad_scans = 0u64;
+    let mut flagged_scans = 0u64;
     let cell = |v: Option<f64>| v.map_or(String::new(), |x| format!("{x}"));
     let n = report.len();
     // Rows are formatted on the worker threads; the sink only writes.
-    let csv_row = |s: &ScanResult| -> (bool, Vec<String>) {
+    let csv_row = |s: &ScanResult| -> ((bool, bool), Vec<String>) {
         let mut rec = Vec::with_capacity(2 + 3 * n);
         rec.push(s.row.to_string());
         rec.extend(s.values.iter().map(|v| cell(*v)));
@@ -153,9 +144,10 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             }
         }
         rec.push(s.problems.join("; "));
-        (!s.problems.is_empty(), rec)
+        rec.push(s.flags.join("; "));
+        ((!s.problems.is_empty(), !s.flags.is_empty()), rec)
     };
-    let json_row = |s: &ScanResult| -> (bool, String) {
+    let json_row = |s: &ScanResult| -> ((bool, bool), String) {
         let mut m = serde_json::Map::new();
         m.insert("row".into(), s.row.into());
         for (k, v) in report.iter().zip(&s.values) {
@@ -179,8 +171,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             );
         }
         m.insert("problems".into(), s.problems.join("; ").into());
+        m.insert("flags".into(), s.flags.join("; ").into());
         (
-            !s.problems.is_empty(),
+            (!s.problems.is_empty(), !s.flags.is_empty()),
             serde_json::Value::Object(m).to_string(),
         )
     };
@@ -201,8 +194,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 &report,
                 &opts,
                 json_row,
-                |(bad, text)| {
+                |((bad, flagged), text)| {
                     bad_scans += u64::from(bad);
+                    flagged_scans += u64::from(flagged);
                     let sep = if first { "\n" } else { ",\n" };
                     first = false;
                     write!(w, "{sep}{text}")
@@ -223,8 +217,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 &report,
                 &opts,
                 csv_row,
-                |(bad, rec)| {
+                |((bad, flagged), rec)| {
                     bad_scans += u64::from(bad);
+                    flagged_scans += u64::from(flagged);
                     w.write_record(&rec).map_err(std::io::Error::other)
                 },
                 progress,
@@ -248,6 +243,11 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         eprintln!(
             "stationwise: {}: no scans after the header",
             a.scans.display()
+        );
+    }
+    if flagged_scans > 0 {
+        eprintln!(
+            "stationwise: {flagged_scans} of {rows} scans had readings left out (see the flags column)"
         );
     }
     if bad_scans > 0 {

@@ -155,6 +155,20 @@ pub(crate) fn positive(what: &'static str, value: f64) -> Result<f64, FlowError>
     }
 }
 
+/// Refuse a state holding a non-finite value (inputs near zero or
+/// infinity can overflow a relation that is right for ordinary values).
+pub(crate) fn finite_state(what: &'static str, s: FlowState) -> Result<FlowState, FlowError> {
+    let vals = [s.tt, s.pt, s.t, s.p, s.rho, s.v, s.a, s.mach];
+    match vals.iter().find(|v| !v.is_finite()) {
+        None => Ok(s),
+        Some(&value) => Err(FlowError::BadInput {
+            what,
+            value,
+            why: "the state overflows finite arithmetic (an input too near zero or too large)",
+        }),
+    }
+}
+
 /// Refuse non-finite or negative values.
 pub(crate) fn non_negative(what: &'static str, value: f64) -> Result<f64, FlowError> {
     if value.is_finite() && value >= 0.0 {

@@ -62,18 +62,22 @@ pub fn normal(gas: &Gas, up: &FlowState) -> Result<FlowState, FlowError> {
             let p = up.p * closed::p2_p1(m1, gm);
             let m2 = closed::m2(m1, gm);
             let a = (gm * g.r() * t).sqrt();
-            Ok(FlowState {
-                tt: up.tt,
-                pt: up.pt * closed::pt2_pt1(m1, gm),
-                t,
-                p,
-                rho: p / (g.r() * t),
-                v: m2 * a,
-                a,
-                mach: m2,
-            })
+            super::finite_state(
+                "state after the normal shock",
+                FlowState {
+                    tt: up.tt,
+                    pt: up.pt * closed::pt2_pt1(m1, gm),
+                    t,
+                    p,
+                    rho: p / (g.r() * t),
+                    v: m2 * a,
+                    a,
+                    mach: m2,
+                },
+            )
         }
-        Gas::Thermal(m) => general::normal(m, up),
+        Gas::Thermal(m) => general::normal(m, up)
+            .and_then(|s| super::finite_state("state after the normal shock", s)),
     }
 }
 

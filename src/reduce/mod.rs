@@ -22,7 +22,10 @@ use crate::book::{Channel, Workbook};
 use crate::engine::Engine;
 use crate::units::{self, Quantity, Unit};
 use rayon::prelude::*;
-use std::io::Read;
+use std::io::BufRead;
+
+pub mod scans;
+pub use scans::{ScanLine, ScanReader};
 
 /// Errors that stop a reduction before it starts.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -81,6 +84,9 @@ struct PlanChannel {
     unit: &'static Unit,
     systematic: Option<Unc>,
     random: Option<Unc>,
+    /// The physical range of the given it feeds (hard part only): a probe
+    /// reading outside it is left out of the average and flagged.
+    bound: Option<crate::book::bounds::Bound>,
 }
 
 /// A compiled channel map.
@@ -100,6 +106,8 @@ pub struct Inputs {
     pub readings: Vec<f64>,
     /// Barometer, Pa (when mapped).
     pub baro: Option<f64>,
+    /// Probes left out of their average, and why (each probe named).
+    pub flags: Vec<String>,
 }
 
 fn parse_unc(
@@ -196,18 +204,27 @@ fn plan_channel(
         {
             return Err(ReduceError::BadChannel {
                 given,
-                why: "weights must be one non-negative number per column".into(),
+                why: "weights must be one finite, non-negative number per column".into(),
             });
         }
-        let sum: f64 = c.weights.iter().sum();
-        if sum <= 0.0 {
+        // Scaled by the largest first, so that weights near the top of the
+        // floating-point range cannot overflow their sum.
+        let max = c.weights.iter().copied().fold(0.0, f64::max);
+        if max <= 0.0 {
             return Err(ReduceError::BadChannel {
                 given,
-                why: "weights sum to zero".into(),
+                why: "weights are all zero".into(),
             });
         }
-        c.weights.iter().map(|w| w / sum).collect()
+        let scaled: Vec<f64> = c.weights.iter().map(|w| w / max).collect();
+        let sum: f64 = scaled.iter().sum();
+        scaled.iter().map(|w| w / sum).collect()
     };
+    let (scope, key) = match c.given.split('.').collect::<Vec<_>>().as_slice() {
+        [] | [_] => ("ambient", "pressure"),
+        [scope, .., key] => (*scope, *key),
+    };
+    let bound = crate::book::bounds::of(scope, key, q).filter(|b| b.hard);
     Ok(PlanChannel {
         label: if c.given.is_empty() {
             format!("barometer {}", c.columns.join("+"))
@@ -220,6 +237,7 @@ fn plan_channel(
         cols,
         weights,
         unit,
+        bound,
     })
 }
 
@@ -276,6 +294,10 @@ impl Plan {
     }
 
     /// Channel values of one scan; every bad cell is reported (row, column).
+    /// A probe reading outside the physical range of its given (a negative
+    /// absolute pressure, a temperature below absolute zero, a negative
+    /// speed, an overflow) is left out and its probe flagged; the others
+    /// are re-weighted. A channel with no probe left is a problem.
     pub fn inputs(
         &self,
         header: &[String],
@@ -283,65 +305,88 @@ impl Plan {
         row: u64,
     ) -> Result<Inputs, Vec<String>> {
         let mut problems = Vec::new();
-        let mut mean = |c: &PlanChannel| -> Option<f64> {
-            let mut acc = 0.0;
-            for (&i, w) in c.cols.iter().zip(&c.weights) {
+        let mut flags = Vec::new();
+        let col = |i: usize| header.get(i).map_or("?", |s| s.as_str());
+        // The mean of a channel's probes (SI, absolute) and its reading
+        // (SI, before the barometer).
+        let mut mean = |c: &PlanChannel, offset: f64| -> Option<(f64, f64)> {
+            let (mut acc, mut wsum) = (0.0, 0.0);
+            let mut bad = false;
+            for (&i, &w) in c.cols.iter().zip(&c.weights) {
                 let Some(cell) = record.get(i) else {
                     problems.push(format!(
                         "row {row}, column {}: missing (the row has {} of the header's {} fields)",
-                        header.get(i).map_or("?", |s| s.as_str()),
+                        col(i),
                         record.len(),
                         header.len()
                     ));
                     return None;
                 };
                 let cell = cell.trim();
-                match cell.parse::<f64>() {
-                    Ok(v) if v.is_finite() => acc += w * v,
+                let v = match cell.parse::<f64>() {
+                    Ok(v) if v.is_finite() => v,
                     _ => {
                         problems.push(format!(
                             "row {row}, column {}: \"{cell}\" is not a number",
-                            header.get(i).map_or("?", |s| s.as_str())
+                            col(i)
                         ));
-                        return None;
+                        bad = true;
+                        continue;
                     }
+                };
+                let abs = units::to_si(v, c.unit) + offset;
+                if let Some(b) = &c.bound
+                    && !b.holds(abs)
+                {
+                    flags.push(format!(
+                        "row {row}, column {}: {cell} {} left out of {} ({})",
+                        col(i),
+                        c.unit.symbol,
+                        c.label,
+                        b.why
+                    ));
+                    continue;
                 }
+                acc += w * abs;
+                wsum += w;
             }
-            Some(units::to_si(acc, c.unit))
+            if bad {
+                return None;
+            }
+            if wsum <= 0.0 {
+                problems.push(format!(
+                    "row {row}: no usable reading for {} (every probe was left out)",
+                    c.label
+                ));
+                return None;
+            }
+            let abs = acc / wsum;
+            Some((abs, abs - offset))
         };
-        let baro = self.baro.as_ref().map(&mut mean);
-        let readings: Vec<Option<f64>> = self.channels.iter().map(&mut mean).collect();
+        let baro = self.baro.as_ref().and_then(|b| mean(b, 0.0)).map(|m| m.0);
+        let mut values = Vec::with_capacity(self.channels.len());
+        let mut readings = Vec::with_capacity(self.channels.len());
+        for c in &self.channels {
+            let offset = if c.unit.gauge {
+                baro.unwrap_or(0.0)
+            } else {
+                0.0
+            };
+            let (v, r) = mean(c, offset).unwrap_or((f64::NAN, f64::NAN));
+            values.push(v);
+            readings.push(r);
+        }
+        if self.baro.is_some() && baro.is_none() && problems.is_empty() {
+            problems.push(format!("row {row}: no usable barometer reading"));
+        }
         if !problems.is_empty() {
             return Err(problems);
         }
-        let baro = baro.flatten();
-        if let Some(b) = baro
-            && b <= 0.0
-        {
-            return Err(vec![format!(
-                "row {row}: barometer {b:.1} Pa is not positive"
-            )]);
-        }
-        let readings: Vec<f64> = readings
-            .into_iter()
-            .map(|r| r.unwrap_or(f64::NAN))
-            .collect();
-        let values = self
-            .channels
-            .iter()
-            .zip(&readings)
-            .map(|(c, r)| {
-                if c.unit.gauge {
-                    r + baro.unwrap_or(0.0)
-                } else {
-                    *r
-                }
-            })
-            .collect();
         Ok(Inputs {
             values,
             readings,
             baro,
+            flags,
         })
     }
 
@@ -375,6 +420,7 @@ impl Plan {
             values,
             readings,
             baro,
+            flags: Vec::new(),
         }
     }
 
@@ -644,6 +690,21 @@ pub struct ScanResult {
     pub monte_carlo: Vec<Option<f64>>,
     /// Problems of this scan.
     pub problems: Vec<String>,
+    /// Readings left out (with why); the scan is reduced without them.
+    pub flags: Vec<String>,
+}
+
+impl ScanResult {
+    fn empty(row: u64, n: usize) -> ScanResult {
+        ScanResult {
+            row,
+            values: vec![None; n],
+            uncertainty: Vec::new(),
+            monte_carlo: Vec::new(),
+            problems: Vec::new(),
+            flags: Vec::new(),
+        }
+    }
 }
 
 /// Default report: every component figure and every summary figure that the
@@ -675,13 +736,7 @@ pub fn reduce_one(
     report: &[String],
     opts: &Options,
 ) -> ScanResult {
-    let mut out = ScanResult {
-        row,
-        values: vec![None; report.len()],
-        uncertainty: Vec::new(),
-        monte_carlo: Vec::new(),
-        problems: Vec::new(),
-    };
+    let mut out = ScanResult::empty(row, report.len());
     let inputs = match plan.inputs(header, record, row) {
         Ok(i) => i,
         Err(p) => {
@@ -689,6 +744,7 @@ pub fn reduce_one(
             return out;
         }
     };
+    out.flags = inputs.flags.clone();
     if let Err(e) = plan.apply(engine, &inputs) {
         out.problems.push(format!("row {row}: {e}"));
         return out;
@@ -715,9 +771,9 @@ pub fn reduce_one(
 /// input order; `progress` receives the bytes read so far. Rows are read
 /// in batches, each reduced in parallel, so memory does not grow with the
 /// file.
-pub fn reduce<R: Read + Send>(
+pub fn reduce<R: BufRead + Send>(
     engine: &Engine,
-    reader: &mut csv::Reader<R>,
+    reader: &mut ScanReader<R>,
     report: &[String],
     opts: &Options,
     mut sink: impl FnMut(&ScanResult) -> std::io::Result<()>,
@@ -734,30 +790,24 @@ pub fn reduce<R: Read + Send>(
     )
 }
 
-type Batch = (Vec<(u64, csv::StringRecord)>, u64);
+/// A batch of scan lines with their row numbers, and the bytes read, or
+/// the error that stopped the reading.
+type Batch = Result<(Vec<(u64, ScanLine)>, u64), ReduceError>;
 
 /// [`reduce`] with a `render` step (formatting an output row, say) that
 /// runs on the worker threads beside the reduction. A reader thread reads
 /// the next batch while the current one is reduced; at most two batches
 /// wait, so memory stays bounded.
-pub fn reduce_with<R: Read + Send, T: Send>(
+pub fn reduce_with<R: BufRead + Send, T: Send>(
     engine: &Engine,
-    reader: &mut csv::Reader<R>,
+    reader: &mut ScanReader<R>,
     report: &[String],
     opts: &Options,
     render: impl Fn(&ScanResult) -> T + Sync,
     mut sink: impl FnMut(T) -> std::io::Result<()>,
     mut progress: impl FnMut(u64),
 ) -> Result<(Plan, u64), ReduceError> {
-    let header: Vec<String> = reader
-        .headers()
-        .map_err(|e| ReduceError::Read(e.to_string()))?
-        .iter()
-        .map(|s| s.trim().to_string())
-        .collect();
-    if header.is_empty() || header.iter().all(|h| h.is_empty()) {
-        return Err(ReduceError::Read("empty file: no header row".into()));
-    }
+    let header: Vec<String> = reader.header().to_vec();
     let plan = Plan::new(engine.book(), &header)?;
     for r in report {
         engine
@@ -774,25 +824,23 @@ pub fn reduce_with<R: Read + Send, T: Send>(
                 let mut buf = Vec::with_capacity(batch);
                 let mut done = false;
                 while buf.len() < batch {
-                    let mut rec = csv::StringRecord::new();
-                    match reader.read_record(&mut rec) {
-                        Ok(true) => {
+                    match reader.next_line() {
+                        Ok(Some(line)) => {
                             row += 1;
-                            buf.push((row, rec));
+                            buf.push((row, line));
                         }
-                        Ok(false) => {
+                        Ok(None) => {
                             done = true;
                             break;
                         }
                         Err(e) => {
-                            // A malformed line is that scan's problem, not the run's.
-                            row += 1;
-                            buf.push((row, csv::StringRecord::from(vec![format!("\u{0}{e}")])));
+                            let _ = tx.send(Err(e));
+                            return;
                         }
                     }
                 }
-                let pos = reader.position().byte();
-                if !buf.is_empty() && tx.send((buf, pos)).is_err() {
+                let pos = reader.position();
+                if !buf.is_empty() && tx.send(Ok((buf, pos))).is_err() {
                     return;
                 }
                 if done {
@@ -800,30 +848,23 @@ pub fn reduce_with<R: Read + Send, T: Send>(
                 }
             }
         });
-        for (buf, pos) in rx {
+        for batch in rx {
+            let (buf, pos) = batch?;
             rows += buf.len() as u64;
             let out: Vec<T> = buf
                 .par_iter()
                 .map_init(
                     || engine.clone(),
-                    |eng, (row, rec)| {
-                        let r = if rec.len() == 1
-                            && rec.get(0).is_some_and(|c| c.starts_with('\u{0}'))
-                        {
-                            let msg = rec
-                                .get(0)
-                                .unwrap_or("")
-                                .trim_start_matches('\u{0}')
-                                .to_string();
-                            ScanResult {
-                                row: *row,
-                                values: vec![None; report.len()],
-                                uncertainty: Vec::new(),
-                                monte_carlo: Vec::new(),
-                                problems: vec![format!("row {row}: unreadable line ({msg})")],
+                    |eng, (row, line)| {
+                        let r = match line {
+                            ScanLine::Record(rec) => {
+                                reduce_one(eng, &plan, &header, rec, *row, report, opts)
                             }
-                        } else {
-                            reduce_one(eng, &plan, &header, rec, *row, report, opts)
+                            ScanLine::Bad(why) => {
+                                let mut r = ScanResult::empty(*row, report.len());
+                                r.problems = vec![format!("row {row}: unreadable line ({why})")];
+                                r
+                            }
                         };
                         render(&r)
                     },
@@ -839,20 +880,10 @@ pub fn reduce_with<R: Read + Send, T: Send>(
     result.map(|()| (plan, rows))
 }
 
-/// A CSV or tab-separated reader (tabs when the header line has a tab).
-pub fn open_scans(path: &std::path::Path) -> Result<csv::Reader<std::fs::File>, ReduceError> {
-    let mut first = String::new();
-    {
-        use std::io::BufRead;
-        let f = std::fs::File::open(path)
-            .map_err(|e| ReduceError::Read(format!("{}: {e}", path.display())))?;
-        let _ = std::io::BufReader::new(f).read_line(&mut first);
-    }
-    let delim = if first.contains('\t') { b'\t' } else { b',' };
-    csv::ReaderBuilder::new()
-        .delimiter(delim)
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_path(path)
-        .map_err(|e| ReduceError::Read(format!("{}: {e}", path.display())))
+/// Open a scan file: CSV, or tab-separated when the header line has a tab
+/// (see [`scans`]).
+pub fn open_scans(
+    path: &std::path::Path,
+) -> Result<ScanReader<std::io::BufReader<std::fs::File>>, ReduceError> {
+    ScanReader::open(path)
 }

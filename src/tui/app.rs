@@ -274,11 +274,15 @@ pub struct ScanBrowser {
     /// Its header.
     pub header: Vec<String>,
     /// Its rows (at most [`MAX_BROWSE`]).
-    pub rows: Vec<csv::StringRecord>,
+    pub rows: Vec<crate::reduce::ScanLine>,
     /// The compiled channel map.
     pub plan: crate::reduce::Plan,
-    /// The scan shown (index into rows).
+    /// The scan selected (index into rows).
     pub at: usize,
+    /// The scan whose values the workbook holds (None: none yet). It
+    /// differs from `at` when the selected scan could not be applied, and
+    /// the title then says whose values are on screen.
+    pub shown: Option<usize>,
 }
 
 /// Most scans the browser holds in memory (the `reduce` command streams any length).
@@ -1794,19 +1798,14 @@ impl App {
     pub fn load_scans(&mut self, path: &Path) -> Result<(), String> {
         let book = self.book().ok_or("no workbook")?.clone();
         let mut rdr = crate::reduce::open_scans(path).map_err(|e| e.to_string())?;
-        let header: Vec<String> = rdr
-            .headers()
-            .map_err(|e| e.to_string())?
-            .iter()
-            .map(|s| s.trim().to_string())
-            .collect();
+        let header: Vec<String> = rdr.header().to_vec();
         let plan = crate::reduce::Plan::new(&book, &header).map_err(|e| e.to_string())?;
         let mut rows = Vec::new();
-        for r in rdr.records() {
-            if rows.len() >= MAX_BROWSE {
-                break;
+        while rows.len() < MAX_BROWSE {
+            match rdr.next_line().map_err(|e| e.to_string())? {
+                Some(line) => rows.push(line),
+                None => break,
             }
-            rows.push(r.unwrap_or_default());
         }
         if rows.is_empty() {
             return Err(format!("{}: no scans after the header", path.display()));
@@ -1817,6 +1816,7 @@ impl App {
             rows,
             plan,
             at: 0,
+            shown: None,
         });
         self.step_scan(0);
         Ok(())
@@ -1830,10 +1830,15 @@ impl App {
         let n = sb.rows.len();
         sb.at = (sb.at as isize + d).clamp(0, n as isize - 1) as usize;
         let row = sb.at as u64 + 1;
-        let inputs = sb.plan.inputs(&sb.header, &sb.rows[sb.at], row);
+        let inputs = match &sb.rows[sb.at] {
+            crate::reduce::ScanLine::Record(rec) => sb.plan.inputs(&sb.header, rec, row),
+            crate::reduce::ScanLine::Bad(why) => Err(vec![format!("unreadable line ({why})")]),
+        };
+        let at = sb.at;
         let (msg, err) = match (inputs, self.engine.as_mut()) {
             (Ok(i), Some(e)) => match sb.plan.apply(e, &i) {
                 Ok(()) => {
+                    sb.shown = Some(at);
                     let probs = e.problems();
                     if probs.is_empty() {
                         (format!("scan {row} of {n}"), false)

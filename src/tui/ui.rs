@@ -172,9 +172,25 @@ fn title_line(app: &App) -> Line<'static> {
         units::UnitSystem::Si => "SI",
         units::UnitSystem::Us => "US",
     };
-    let scan = app.scans.as_ref().map_or(String::new(), |sb| {
-        format!(" scan {}/{}", sb.at + 1, sb.rows.len())
-    });
+    // Whose values are on screen is never left to the status line: a scan
+    // that could not be applied says so in the title.
+    let scan = app
+        .scans
+        .as_ref()
+        .map_or(String::new(), |sb| match sb.shown {
+            Some(s) if s == sb.at => format!(" scan {}/{}", sb.at + 1, sb.rows.len()),
+            Some(s) => format!(
+                " scan {}/{} UNREADABLE, values of scan {}",
+                sb.at + 1,
+                sb.rows.len(),
+                s + 1
+            ),
+            None => format!(
+                " scan {}/{} UNREADABLE, workbook values",
+                sb.at + 1,
+                sb.rows.len()
+            ),
+        });
     Line::from(vec![
         Span::styled(
             " stationwise ",
