@@ -26,7 +26,23 @@ pub(super) fn check(a: CheckArgs) -> Result<u8, Failure> {
             Ok((book, engine)) => {
                 let problems = engine.problems();
                 let stale = format::stale_results(&book, &engine);
-                if problems.is_empty() && stale.is_empty() {
+                // Everything `reduce` and the goals would refuse, found now.
+                let mut setup = Vec::new();
+                if book.channels.is_some()
+                    && let Err(e) = crate::reduce::Plan::without_scans(&book)
+                {
+                    setup.push(format!("channel map: {e}"));
+                }
+                for (i, g) in book.goals.iter().enumerate() {
+                    if let Err(e) = engine.value(&g.target) {
+                        setup.push(format!("goal {}: target: {e}", i + 1));
+                    }
+                }
+                for m in &setup {
+                    println!("{}: {m}", f.display());
+                }
+                problems_found |= !setup.is_empty();
+                if problems.is_empty() && stale.is_empty() && setup.is_empty() {
                     println!("{}: ok", f.display());
                 } else {
                     for p in problems {

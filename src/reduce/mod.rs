@@ -125,6 +125,12 @@ fn parse_unc(
             given: given.into(),
             why: format!("{what} uncertainty \"{t}\" is not a number with %"),
         })?;
+        if !(v.is_finite() && (0.0..=100.0).contains(&v)) {
+            return Err(ReduceError::BadChannel {
+                given: given.into(),
+                why: format!("{what} uncertainty \"{t}\" must be from 0 to 100 %"),
+            });
+        }
         return Ok(Some(Unc::Rel(v / 100.0)));
     }
     // An uncertainty is a difference: temperatures take difference units,
