@@ -410,7 +410,19 @@ pub fn delta(pt_pa: f64) -> f64 {
 /// `w sqrt(theta) / delta`, kg/s. Callers pass validated, positive
 /// temperature and pressure; otherwise the result is not finite.
 pub fn corrected_flow(w_kg_s: f64, tt_k: f64, pt_pa: f64) -> f64 {
-    w_kg_s * theta(tt_k).sqrt() / delta(pt_pa)
+    corrected_flow_to(
+        w_kg_s,
+        tt_k,
+        pt_pa,
+        (SEA_LEVEL_TEMPERATURE_K, SEA_LEVEL_PRESSURE_PA),
+    )
+}
+
+/// Mass flow corrected to a reference total temperature and pressure
+/// `(t_ref, p_ref)`: `w sqrt(Tt/t_ref) / (pt/p_ref)`, kg/s. The one formula
+/// of corrected flow: grid, figures and explanations all call it.
+pub fn corrected_flow_to(w_kg_s: f64, tt_k: f64, pt_pa: f64, reference: (f64, f64)) -> f64 {
+    w_kg_s * (tt_k / reference.0).sqrt() / (pt_pa / reference.1)
 }
 
 /// Shaft speed corrected to sea-level standard inlet temperature,

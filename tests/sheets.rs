@@ -592,3 +592,53 @@ fn turbojet_explain_station_4_golden() {
     let text = stdout_ok(&["explain", "sheets/turbojet.ron", "4"]);
     insta::assert_snapshot!("turbojet_explain_4", text);
 }
+
+/// With a workbook reference of its own, corrected flow is one number
+/// everywhere: the grid's value, `explain` and `eval --format json` all give
+/// W sqrt(Tt/T_ref)/(pt/p_ref), computed here by hand from eval's W, Tt and
+/// pt (the definition of corrected flow, SAE ARP 755's theta and delta
+/// taken to a stated reference).
+#[test]
+fn corrected_flow_follows_a_custom_reference_everywhere() {
+    let text = std::fs::read_to_string(sheets_dir().join("compressor-rig.ron")).unwrap();
+    let text = text.replacen(
+        "    ambient: (\n",
+        "    ambient: (\n        reference: (temperature: \"300 K\", pressure: \"90 kPa\"),\n",
+        1,
+    );
+    let dir = std::env::temp_dir().join(format!("sw-wc-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join("rig.ron");
+    std::fs::write(&p, &text).unwrap();
+    let e = Engine::new(format::parse(&text).unwrap()).unwrap();
+    let grid = e.value("station.1.wc").unwrap().unwrap();
+    let (w, tt, pt) = (
+        e.value("station.1.w").unwrap().unwrap(),
+        e.value("station.1.tt").unwrap().unwrap(),
+        e.value("station.1.pt").unwrap().unwrap(),
+    );
+    let hand = w * (tt / 300.0).sqrt() / (pt / 90_000.0);
+    close(grid, hand, 1e-12, "grid Wc");
+    let o = run(&["eval", p.to_str().unwrap(), "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let json = v["stations"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["name"] == "1")
+        .unwrap()["wc_kg_s"]
+        .as_f64()
+        .unwrap();
+    close(json, hand, 1e-12, "eval JSON Wc");
+    let o = run(&["explain", p.to_str().unwrap(), "1"]);
+    let out = String::from_utf8_lossy(&o.stdout);
+    let line = out
+        .lines()
+        .rev()
+        .find(|l| l.trim_start().starts_with("Wc "))
+        .unwrap_or_else(|| panic!("{out}"));
+    let shown: f64 = line.split_whitespace().nth(1).unwrap().parse().unwrap();
+    close(shown, hand, 5e-5, "explain Wc (printed to 5 digits)");
+    assert!(out.contains("300 K") || out.contains("300.00 K"), "{out}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -83,11 +83,6 @@ pub struct Ctx<'a> {
     pub reference: (f64, f64),
 }
 
-/// Mass flow corrected to a reference: W sqrt(Tt/Tref) / (pt/pref).
-pub fn corrected_flow(w: f64, tt: f64, pt: f64, r: (f64, f64)) -> f64 {
-    w * (tt / r.0).sqrt() / (pt / r.1)
-}
-
 type Res<T> = Result<T, String>;
 
 fn fe(e: FlowError) -> String {
@@ -945,7 +940,10 @@ fn stage_figures(ctx: &Ctx, st: &Stage, w: f64, i: &StationValue) -> Vec<(&'stat
         ("power", st.work * w),
         ("tt_ratio", st.tt_out / i.tt),
         ("tt_ideal", st.tt_ideal),
-        ("wc_in", corrected_flow(i.w, i.tt, i.pt, ctx.reference)),
+        (
+            "wc_in",
+            crate::atmosphere::corrected_flow_to(i.w, i.tt, i.pt, ctx.reference),
+        ),
     ];
     if let Some(n) = ctx.shaft_speed {
         v.push(("nc", n / (i.tt / ctx.reference.0).sqrt()));

@@ -1122,7 +1122,12 @@ impl Engine {
             "a" => f.map(|f| f.a),
             "mach" => f.map(|f| f.mach),
             "q" => f.map(|f| f.dynamic_pressure()),
-            "wc" => Some(compute::corrected_flow(v.w, v.tt, v.pt, self.reference())),
+            "wc" => Some(atmosphere::corrected_flow_to(
+                v.w,
+                v.tt,
+                v.pt,
+                self.reference(),
+            )),
             "ht" => gas()?.sensible_h(v.tt).ok(),
             "s" => {
                 let g = gas()?;
@@ -1223,17 +1228,20 @@ impl Engine {
         }
         if let Some(v) = self.station(station) {
             let mut tr = Tracer::on(&mut steps);
-            let wc = atmosphere::corrected_flow(v.w, v.tt, v.pt);
+            let reference = self.reference();
+            let wc = atmosphere::corrected_flow_to(v.w, v.tt, v.pt, reference);
             explain::step!(
                 tr,
                 "Wc",
                 wc,
                 MassFlow,
-                "corrected flow W sqrt(theta)/delta, theta = Tt/288.15 K, delta = pt/101325 Pa",
+                "corrected flow W sqrt(theta)/delta, theta = Tt/T_ref, delta = pt/p_ref (the workbook's reference; ISA sea level unless it names one)",
                 [
                     ("W", v.w, MassFlow),
                     ("Tt", v.tt, Temperature),
-                    ("pt", v.pt, Pressure)
+                    ("pt", v.pt, Pressure),
+                    ("T_ref", reference.0, Temperature),
+                    ("p_ref", reference.1, Pressure)
                 ]
             );
             if let Some(s_val) = self.station_key(v, "s") {
