@@ -669,32 +669,66 @@ pub struct GivenField<'a> {
     pub given: &'a mut Given,
 }
 
-impl GivenField<'_> {
-    /// The full path ("process.compressor.pressure_ratio").
+/// One given met by [`Workbook::visit_givens_ref`].
+pub struct GivenRef<'a> {
+    /// Scope ("ambient", "gas", "station", "process", "shaft").
+    pub scope: &'static str,
+    /// Station, process or shaft name (empty for ambient and gas).
+    pub name: &'a str,
+    /// Field key.
+    pub key: &'a str,
+    /// Its quantity.
+    pub quantity: Quantity,
+    /// The given.
+    pub given: &'a Given,
+}
+
+impl GivenRef<'_> {
+    /// The full path.
     pub fn path(&self) -> String {
-        if self.name.is_empty() {
-            format!("{}.{}", self.scope, self.key)
-        } else {
-            format!("{}.{}.{}", self.scope, self.name, self.key)
-        }
+        path_of(self.scope, self.name, self.key)
     }
 
     /// Whether this field has the path `p` (no allocation).
     pub fn is(&self, p: &str) -> bool {
-        let Some(rest) = p.strip_prefix(self.scope).and_then(|r| r.strip_prefix('.')) else {
-            return false;
-        };
-        let Some(rest) = rest.strip_suffix(self.key).and_then(|r| {
-            r.strip_suffix('.')
-                .or(if self.name.is_empty() { Some(r) } else { None })
-        }) else {
-            return false;
-        };
-        if self.name.is_empty() {
-            rest.is_empty()
-        } else {
-            rest == self.name
-        }
+        path_is(self.scope, self.name, self.key, p)
+    }
+}
+
+fn path_of(scope: &str, name: &str, key: &str) -> String {
+    if name.is_empty() {
+        format!("{scope}.{key}")
+    } else {
+        format!("{scope}.{name}.{key}")
+    }
+}
+
+impl GivenField<'_> {
+    /// The full path ("process.compressor.pressure_ratio").
+    pub fn path(&self) -> String {
+        path_of(self.scope, self.name, self.key)
+    }
+
+    /// Whether this field has the path `p` (no allocation).
+    pub fn is(&self, p: &str) -> bool {
+        path_is(self.scope, self.name, self.key, p)
+    }
+}
+
+fn path_is(scope: &str, name: &str, key: &str, p: &str) -> bool {
+    let Some(rest) = p.strip_prefix(scope).and_then(|r| r.strip_prefix('.')) else {
+        return false;
+    };
+    let Some(rest) = rest
+        .strip_suffix(key)
+        .and_then(|r| r.strip_suffix('.').or(if name.is_empty() { Some(r) } else { None }))
+    else {
+        return false;
+    };
+    if name.is_empty() {
+        rest.is_empty()
+    } else {
+        rest == name
     }
 }
 
@@ -759,20 +793,14 @@ pub enum BookError {
     },
 }
 
-impl Workbook {
-    /// Walk every given with its path and quantity.
-    pub fn visit_givens(&mut self, f: &mut dyn FnMut(GivenField<'_>)) {
-        let mut g =
-            |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &mut Given| {
-                f(GivenField {
-                    scope,
-                    name,
-                    key,
-                    quantity,
-                    given,
-                })
-            };
-        match &mut self.ambient.condition {
+/// The walk over every given of a workbook, written once and expanded for
+/// shared (`visit_givens_ref`) and exclusive (`visit_givens`) access, as
+/// `iter` and `iter_mut` are.
+macro_rules! walk_givens {
+    ($book:ident, $g:ident, $($m:tt)*) => {{
+        let book = $book;
+        let mut g = $g;
+        match & $($m)* book.ambient.condition {
             Condition::Standard {
                 altitude, offset, ..
             } => {
@@ -799,27 +827,27 @@ impl Workbook {
                 );
             }
         }
-        match &mut self.ambient.flight {
+        match & $($m)* book.ambient.flight {
             Flight::Mach(m) => g("ambient", "", "flight_mach", Quantity::Mach, m),
             Flight::Speed(v) => g("ambient", "", "flight_speed", Quantity::Velocity, v),
         }
-        if let Some(r) = &mut self.ambient.reference {
+        if let Some(r) = & $($m)* book.ambient.reference {
             g(
                 "ambient",
                 "",
                 "reference_temperature",
                 Quantity::Temperature,
-                &mut r.temperature,
+                & $($m)* r.temperature,
             );
             g(
                 "ambient",
                 "",
                 "reference_pressure",
                 Quantity::Pressure,
-                &mut r.pressure,
+                & $($m)* r.pressure,
             );
         }
-        if let Some(h) = &mut self.ambient.humidity {
+        if let Some(h) = & $($m)* book.ambient.humidity {
             g("ambient", "", "humidity", Quantity::Ratio, h);
         }
         if let GasSettings::CaloricallyPerfect {
@@ -827,7 +855,7 @@ impl Workbook {
             r,
             hot_gamma,
             hot_r,
-        } = &mut self.gas
+        } = & $($m)* book.gas
         {
             g("gas", "", "gamma", Quantity::Ratio, gamma);
             g("gas", "", "r", Quantity::SpecificHeat, r);
@@ -838,15 +866,15 @@ impl Workbook {
                 g("gas", "", "hot_r", Quantity::SpecificHeat, x);
             }
         }
-        for s in &mut self.stations {
+        for s in & $($m)* book.stations {
             let name = s.name.as_str();
-            if let Some(x) = &mut s.tt {
+            if let Some(x) = & $($m)* s.tt {
                 g("station", name, "tt", Quantity::Temperature, x);
             }
-            if let Some(x) = &mut s.pt {
+            if let Some(x) = & $($m)* s.pt {
                 g("station", name, "pt", Quantity::Pressure, x);
             }
-            match &mut s.statics {
+            match & $($m)* s.statics {
                 Some(Statics::Mach(x)) => g("station", name, "mach", Quantity::Mach, x),
                 Some(Statics::Pressure(x)) => g("station", name, "p", Quantity::Pressure, x),
                 Some(Statics::Velocity(x)) => g("station", name, "v", Quantity::Velocity, x),
@@ -854,12 +882,12 @@ impl Workbook {
                 None => {}
             }
         }
-        for p in &mut self.processes {
+        for p in & $($m)* book.processes {
             let name = p.name.as_str();
-            let mut q = |field: &str, quantity: Quantity, given: &mut Given| {
+            let mut q = |field: &str, quantity: Quantity, given: & $($m)* Given| {
                 g("process", name, field, quantity, given)
             };
-            match &mut p.kind {
+            match & $($m)* p.kind {
                 Kind::Entry(Entry::Freestream { w }) => q("w", Quantity::MassFlow, w),
                 Kind::Entry(Entry::Plenum { tt, pt, w }) => {
                     q("tt", Quantity::Temperature, tt);
@@ -888,16 +916,16 @@ impl Workbook {
                 }
                 Kind::Duct(Duct::MeasuredExit | Duct::IntakeSchedule) => {}
                 Kind::Combustor(c) => {
-                    match &mut c.mode {
+                    match & $($m)* c.mode {
                         Burn::ExitTemperature(t) => q("exit_tt", Quantity::Temperature, t),
                         Burn::FuelFlow(w) | Burn::Measured(w) => {
                             q("fuel_flow", Quantity::MassFlow, w)
                         }
                     }
-                    q("pressure_loss", Quantity::Ratio, &mut c.pressure_loss);
-                    q("efficiency", Quantity::Ratio, &mut c.efficiency);
-                    q("lhv", Quantity::SpecificEnergy, &mut c.lhv);
-                    q("hc", Quantity::Ratio, &mut c.hc);
+                    q("pressure_loss", Quantity::Ratio, & $($m)* c.pressure_loss);
+                    q("efficiency", Quantity::Ratio, & $($m)* c.efficiency);
+                    q("lhv", Quantity::SpecificEnergy, & $($m)* c.lhv);
+                    q("hc", Quantity::Ratio, & $($m)* c.hc);
                 }
                 Kind::Heating(Heating::Heat(x)) => q("heat", Quantity::SpecificEnergy, x),
                 Kind::Heating(Heating::ExitTemperature(x)) => {
@@ -929,34 +957,67 @@ impl Workbook {
                     ..
                 }) => q("efficiency", Quantity::Ratio, efficiency),
                 Kind::Compressor(_) | Kind::Turbine(_) | Kind::NormalShock => {}
-                Kind::ObliqueShock(o) => q("deflection", Quantity::Angle, &mut o.deflection),
+                Kind::ObliqueShock(o) => q("deflection", Quantity::Angle, & $($m)* o.deflection),
                 Kind::Nozzle(n) => {
-                    if let Exit::Area(a) = &mut n.exit {
+                    if let Exit::Area(a) = & $($m)* n.exit {
                         q("area", Quantity::Area, a);
                     }
-                    q("cv", Quantity::Ratio, &mut n.cv);
-                    q("cd", Quantity::Ratio, &mut n.cd);
+                    q("cv", Quantity::Ratio, & $($m)* n.cv);
+                    q("cd", Quantity::Ratio, & $($m)* n.cd);
                 }
-                Kind::Split(s) => q("bypass_ratio", Quantity::Ratio, &mut s.bypass_ratio),
+                Kind::Split(s) => q("bypass_ratio", Quantity::Ratio, & $($m)* s.bypass_ratio),
                 Kind::Mixer(_) => {}
             }
         }
-        for s in &mut self.shafts {
+        for s in & $($m)* book.shafts {
             let name = s.name.as_str();
             g(
                 "shaft",
                 name,
                 "mechanical_efficiency",
                 Quantity::Ratio,
-                &mut s.mechanical_efficiency,
+                & $($m)* s.mechanical_efficiency,
             );
-            if let Some(x) = &mut s.offtake {
+            if let Some(x) = & $($m)* s.offtake {
                 g("shaft", name, "offtake", Quantity::Power, x);
             }
-            if let Some(x) = &mut s.speed {
+            if let Some(x) = & $($m)* s.speed {
                 g("shaft", name, "speed", Quantity::RotationalSpeed, x);
             }
         }
+    }};
+}
+
+impl Workbook {
+    /// Walk every given with its path and quantity.
+    pub fn visit_givens(&mut self, f: &mut dyn FnMut(GivenField<'_>)) {
+        let g =
+            |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &mut Given| {
+                f(GivenField {
+                    scope,
+                    name,
+                    key,
+                    quantity,
+                    given,
+                })
+            };
+        let book = self;
+        walk_givens!(book, g, mut);
+    }
+
+    /// Walk every given without changing any (no copy of the workbook).
+    pub fn visit_givens_ref(&self, f: &mut dyn FnMut(GivenRef<'_>)) {
+        let g = |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &Given| {
+            f(GivenRef {
+                scope,
+                name,
+                key,
+                quantity,
+                given,
+            })
+        };
+        let book = self;
+        walk_givens!(book, g,);
     }
 
     /// Parse every given with its field's quantity. All errors are
@@ -1044,9 +1105,8 @@ impl Workbook {
 
     /// Every given as (path, quantity, text, SI value), in file order.
     pub fn givens(&self) -> Vec<(String, Quantity, String, f64)> {
-        let mut copy = self.clone();
         let mut out = Vec::new();
-        copy.visit_givens(&mut |f| {
+        self.visit_givens_ref(&mut |f| {
             out.push((f.path(), f.quantity, f.given.text.clone(), f.given.si));
         });
         out
@@ -1054,9 +1114,8 @@ impl Workbook {
 
     /// One given by path, with its quantity.
     pub fn given(&self, path: &str) -> Option<(Quantity, Given)> {
-        let mut copy = self.clone();
         let mut out = None;
-        copy.visit_givens(&mut |f| {
+        self.visit_givens_ref(&mut |f| {
             if f.is(path) {
                 out = Some((f.quantity, f.given.clone()));
             }
