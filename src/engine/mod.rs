@@ -1235,7 +1235,7 @@ impl Engine {
                 "Wc",
                 wc,
                 MassFlow,
-                "corrected flow W sqrt(theta)/delta, theta = Tt/T_ref, delta = pt/p_ref (the workbook's reference; ISA sea level unless it names one)",
+                "corrected flow W sqrt(Tt/T_ref) / (pt/p_ref), to the workbook's reference",
                 [
                     ("W", v.w, MassFlow),
                     ("Tt", v.tt, Temperature),
