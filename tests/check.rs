@@ -70,7 +70,10 @@ fn broken_channel_maps_and_goals_fail_the_check() {
     for (what, text, needle) in cases {
         assert_ne!(text, sheet, "{what}: the edit did not apply");
         let (code, out) = check(&text, "bad");
-        assert!(code == Some(2) || code == Some(1), "{what}: exit {code:?}\n{out}");
+        assert!(
+            code == Some(2) || code == Some(1),
+            "{what}: exit {code:?}\n{out}"
+        );
         assert!(out.contains(needle), "{what}: {out}");
     }
 }

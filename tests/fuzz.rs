@@ -28,15 +28,58 @@ impl Rng {
         z ^ (z >> 31)
     }
     fn below(&mut self, n: usize) -> usize {
-        if n == 0 { 0 } else { (self.next() % n as u64) as usize }
+        if n == 0 {
+            0
+        } else {
+            (self.next() % n as u64) as usize
+        }
     }
 }
 
 const TOKENS: &[&str] = &[
-    "\"", "(", ")", "[", "]", ",", ":", "1e308", "-1e308", "4.9e-324", "nan", "inf", "-0", "0",
-    "1e-300", "99999999999999999999", "psig", "barg", "degF", "degR", "R", "K", "%", "kPa", "lbm/s",
-    "rpm", "m2", "in2", "Some(", "None", "#![enable(implicit_some)]", "//", "/*", "\\", "\u{2212}",
-    "日本", "\u{0}", "\n", "format: 9", "Standard(", "Measured(", "Matched", "Supersonic",
+    "\"",
+    "(",
+    ")",
+    "[",
+    "]",
+    ",",
+    ":",
+    "1e308",
+    "-1e308",
+    "4.9e-324",
+    "nan",
+    "inf",
+    "-0",
+    "0",
+    "1e-300",
+    "99999999999999999999",
+    "psig",
+    "barg",
+    "degF",
+    "degR",
+    "R",
+    "K",
+    "%",
+    "kPa",
+    "lbm/s",
+    "rpm",
+    "m2",
+    "in2",
+    "Some(",
+    "None",
+    "#![enable(implicit_some)]",
+    "//",
+    "/*",
+    "\\",
+    "\u{2212}",
+    "日本",
+    "\u{0}",
+    "\n",
+    "format: 9",
+    "Standard(",
+    "Measured(",
+    "Matched",
+    "Supersonic",
 ];
 
 fn mutate(rng: &mut Rng, seeds: &[Vec<u8>], base: &[u8]) -> Vec<u8> {
@@ -101,8 +144,13 @@ fn workbook_case(bytes: &[u8]) {
     };
     if let Ok(book) = format::parse(text) {
         let canon = format::to_text(&book);
-        let again = format::parse(&canon).unwrap_or_else(|e| panic!("canonical text does not parse: {e}"));
-        assert_eq!(format::to_text(&again), canon, "write-then-parse changed the text");
+        let again =
+            format::parse(&canon).unwrap_or_else(|e| panic!("canonical text does not parse: {e}"));
+        assert_eq!(
+            format::to_text(&again),
+            canon,
+            "write-then-parse changed the text"
+        );
         if let Ok(mut e) = Engine::new(book) {
             let _ = e.problems();
             for (p, ..) in e.book().givens().into_iter().take(3) {
@@ -198,7 +246,10 @@ fn parsers_survive_mutated_input() {
         if what == "workbook" {
             workbook_case(&input);
         }
-        panic!("{what} input panicked (seed {seed}); input saved to {}", p.display());
+        panic!(
+            "{what} input panicked (seed {seed}); input saved to {}",
+            p.display()
+        );
     }
     eprintln!(
         "fuzz: {books} workbooks and {unit_inputs} unit strings in {seconds} s, seed {seed}, no panic"

@@ -719,10 +719,10 @@ fn path_is(scope: &str, name: &str, key: &str, p: &str) -> bool {
     let Some(rest) = p.strip_prefix(scope).and_then(|r| r.strip_prefix('.')) else {
         return false;
     };
-    let Some(rest) = rest
-        .strip_suffix(key)
-        .and_then(|r| r.strip_suffix('.').or(if name.is_empty() { Some(r) } else { None }))
-    else {
+    let Some(rest) = rest.strip_suffix(key).and_then(|r| {
+        r.strip_suffix('.')
+            .or(if name.is_empty() { Some(r) } else { None })
+    }) else {
         return false;
     };
     if name.is_empty() {
