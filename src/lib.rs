@@ -8,6 +8,9 @@
 //!   compression and expansion, combustion) and their solvers. Uses `gas`.
 //! * [`atmosphere`]: the standard atmosphere and standard-day corrections.
 //! * [`book`]: the workbook model (givens as typed, stations, processes).
+//! * [`kinds`]: one file per process kind: its givens, modes, ports and
+//!   computation, behind one trait. Uses `book`, `flow`, `gas` and the
+//!   engine's shared process helpers.
 //! * [`engine`]: dependency graph, incremental recompute, problems, goals,
 //!   explanations. Uses `book`, `flow`, `gas`, `atmosphere`.
 //! * [`format`]: the RON workbook file (versioned, canonical, atomic saves).
@@ -35,6 +38,7 @@ pub mod engine;
 pub mod flow;
 pub mod format;
 pub mod gas;
+pub mod kinds;
 pub mod present;
 pub mod reduce;
 pub mod report;

@@ -141,7 +141,7 @@ pub fn explanation(
     let p = &engine.book().processes[engine.producer_of(idx)];
     let mut out = vec![format!(
         "station {station}: from {} \"{}\"{}",
-        crate::engine::compute::kind_name(&p.kind),
+        crate::kinds::of(&p.kind).name(),
         p.name,
         p.from
             .as_ref()

@@ -12,6 +12,7 @@
 //! reading and writing); it knows nothing of terminals or the engine.
 
 pub mod bounds;
+pub mod edit;
 pub mod paths;
 
 pub use paths::{Path, PathError};
@@ -387,6 +388,10 @@ pub enum Kind {
     Split(Split),
     /// Constant-area mixer of `from` and a second stream.
     Mixer(Mixer),
+    /// A trivial kind that exists only in unit tests, to show what adding
+    /// a kind costs (see `kinds::probe`).
+    #[cfg(test)]
+    Probe(crate::kinds::probe::Probe),
 }
 
 /// Entry modes.
@@ -797,6 +802,14 @@ pub enum BookError {
 /// shared (`visit_givens_ref`) and exclusive (`visit_givens`) access, as
 /// `iter` and `iter_mut` are.
 macro_rules! walk_givens {
+    (@kind $p:ident, mut) => {
+        |f: &mut dyn FnMut(&'static str, Quantity, &mut Given)| {
+            crate::kinds::of_mut(&mut $p.kind).visit_givens_mut(f)
+        }
+    };
+    (@kind $p:ident,) => {
+        |f: &mut dyn FnMut(&'static str, Quantity, &Given)| crate::kinds::of(&$p.kind).visit_givens(f)
+    };
     ($book:ident, $g:ident, $($m:tt)*) => {{
         let book = $book;
         let mut g = $g;
@@ -884,90 +897,9 @@ macro_rules! walk_givens {
         }
         for p in & $($m)* book.processes {
             let name = p.name.as_str();
-            let mut q = |field: &str, quantity: Quantity, given: & $($m)* Given| {
+            walk_givens!(@kind p, $($m)*)(&mut |field: &'static str, quantity: Quantity, given| {
                 g("process", name, field, quantity, given)
-            };
-            match & $($m)* p.kind {
-                Kind::Entry(Entry::Freestream { w }) => q("w", Quantity::MassFlow, w),
-                Kind::Entry(Entry::Plenum { tt, pt, w }) => {
-                    q("tt", Quantity::Temperature, tt);
-                    q("pt", Quantity::Pressure, pt);
-                    q("w", Quantity::MassFlow, w);
-                }
-                Kind::Entry(Entry::ChokedPlenum {
-                    tt,
-                    pt,
-                    throat_area,
-                }) => {
-                    q("tt", Quantity::Temperature, tt);
-                    q("pt", Quantity::Pressure, pt);
-                    q("throat_area", Quantity::Area, throat_area);
-                }
-                Kind::Duct(Duct::Recovery { recovery }) => q("recovery", Quantity::Ratio, recovery),
-                Kind::Duct(Duct::LossCoefficient { k }) => q("k", Quantity::Ratio, k),
-                Kind::Duct(Duct::Friction {
-                    length,
-                    diameter,
-                    friction,
-                }) => {
-                    q("length", Quantity::Length, length);
-                    q("diameter", Quantity::Length, diameter);
-                    q("friction", Quantity::Ratio, friction);
-                }
-                Kind::Duct(Duct::MeasuredExit | Duct::IntakeSchedule) => {}
-                Kind::Combustor(c) => {
-                    match & $($m)* c.mode {
-                        Burn::ExitTemperature(t) => q("exit_tt", Quantity::Temperature, t),
-                        Burn::FuelFlow(w) | Burn::Measured(w) => {
-                            q("fuel_flow", Quantity::MassFlow, w)
-                        }
-                    }
-                    q("pressure_loss", Quantity::Ratio, & $($m)* c.pressure_loss);
-                    q("efficiency", Quantity::Ratio, & $($m)* c.efficiency);
-                    q("lhv", Quantity::SpecificEnergy, & $($m)* c.lhv);
-                    q("hc", Quantity::Ratio, & $($m)* c.hc);
-                }
-                Kind::Heating(Heating::Heat(x)) => q("heat", Quantity::SpecificEnergy, x),
-                Kind::Heating(Heating::ExitTemperature(x)) => {
-                    q("exit_tt", Quantity::Temperature, x)
-                }
-                Kind::Compressor(Compressor {
-                    mode:
-                        Compression::Design {
-                            pressure_ratio,
-                            efficiency,
-                            ..
-                        },
-                    ..
-                })
-                | Kind::Turbine(Turbine {
-                    mode:
-                        Expansion::Design {
-                            pressure_ratio,
-                            efficiency,
-                            ..
-                        },
-                    ..
-                }) => {
-                    q("pressure_ratio", Quantity::Ratio, pressure_ratio);
-                    q("efficiency", Quantity::Ratio, efficiency);
-                }
-                Kind::Turbine(Turbine {
-                    mode: Expansion::ShaftWork { efficiency, .. },
-                    ..
-                }) => q("efficiency", Quantity::Ratio, efficiency),
-                Kind::Compressor(_) | Kind::Turbine(_) | Kind::NormalShock => {}
-                Kind::ObliqueShock(o) => q("deflection", Quantity::Angle, & $($m)* o.deflection),
-                Kind::Nozzle(n) => {
-                    if let Exit::Area(a) = & $($m)* n.exit {
-                        q("area", Quantity::Area, a);
-                    }
-                    q("cv", Quantity::Ratio, & $($m)* n.cv);
-                    q("cd", Quantity::Ratio, & $($m)* n.cd);
-                }
-                Kind::Split(s) => q("bypass_ratio", Quantity::Ratio, & $($m)* s.bypass_ratio),
-                Kind::Mixer(_) => {}
-            }
+            });
         }
         for s in & $($m)* book.shafts {
             let name = s.name.as_str();

@@ -75,7 +75,7 @@ pub fn to_json(engine: &Engine) -> serde_json::Value {
         }
         processes.push(serde_json::json!({
             "name": p.name,
-            "kind": crate::engine::compute::kind_name(&p.kind),
+            "kind": crate::kinds::of(&p.kind).name(),
             "figures": figs,
         }));
     }

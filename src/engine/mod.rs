@@ -24,9 +24,7 @@ pub mod sweep;
 
 use crate::atmosphere::{self, AltitudeKind};
 use crate::book::paths::{STATION_KEYS, SUMMARY_KEYS, Scope};
-use crate::book::{
-    BookError, Condition, Expansion, Flight, GasSettings, Kind, Path, PathError, Station, Workbook,
-};
+use crate::book::{BookError, Condition, Flight, GasSettings, Path, PathError, Station, Workbook};
 use crate::flow::{FlowState, isentropic, solve};
 use crate::gas::{Composition, GasModel, PerfectGas, T_REFERENCE, Thermo};
 use compute::{Ctx, ProcessResult};
@@ -303,7 +301,8 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
     let mut outputs: Vec<Vec<usize>> = vec![Vec::new(); n];
     for (i, p) in book.processes.iter().enumerate() {
         let whose = format!("process \"{}\"", p.name);
-        let is_entry = matches!(p.kind, Kind::Entry(_));
+        let kind = crate::kinds::of(&p.kind);
+        let is_entry = kind.is_entry();
         match (&p.from, is_entry) {
             (Some(_), true) => errors.push(BookError::Rule(format!(
                 "{whose} is an entry and takes its flow from the ambient block or its own givens: remove `from`"
@@ -318,38 +317,30 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
             (None, true) => {}
         }
-        if let Kind::Mixer(m) = &p.kind
-            && let Some(s) = station(&whose, &m.secondary, &mut errors)
+        if let Some(second) = kind.second_input()
+            && let Some(s) = station(&whose, second, &mut errors)
         {
             g.inputs[i].push(s);
         }
         if let Some(s) = station(&whose, &p.to, &mut errors) {
             outputs[i].push(s);
         }
-        if let Kind::Split(sp) = &p.kind
-            && let Some(s) = station(&whose, &sp.bypass, &mut errors)
+        if let Some(second) = kind.second_output()
+            && let Some(s) = station(&whose, second, &mut errors)
         {
             outputs[i].push(s);
         }
-        let shaft = match &p.kind {
-            Kind::Compressor(c) => c.shaft.as_ref(),
-            Kind::Turbine(t) => t.shaft.as_ref(),
-            _ => None,
-        };
-        if let Some(sh) = shaft {
+        if let Some(sh) = kind.shaft() {
             match g.shaft_index.get(sh) {
                 Some(&k) => g.shaft_of[i] = Some(k),
                 None => errors.push(BookError::Unknown {
                     whose: whose.clone(),
                     what: "shaft",
-                    name: sh.clone(),
+                    name: sh.to_string(),
                 }),
             }
         }
-        g.uses_ambient[i] = matches!(
-            p.kind,
-            Kind::Entry(_) | Kind::Nozzle(_) | Kind::Duct(crate::book::Duct::IntakeSchedule)
-        );
+        g.uses_ambient[i] = kind.reads().ambient;
     }
     for (i, outs) in outputs.iter().enumerate() {
         for &s in outs {
@@ -402,7 +393,7 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             });
         }
         if let (Some(&consumer), Some(prod)) = (c.first(), producer[s])
-            && matches!(book.processes[prod].kind, Kind::Nozzle(_))
+            && crate::kinds::of(&book.processes[prod].kind).discharges()
         {
             errors.push(BookError::Feed {
                 station: book.stations[s].name.clone(),
@@ -416,9 +407,7 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
     // Shaft-work turbines depend on the other machines on their shaft.
     let mut work_turbines: HashMap<usize, usize> = HashMap::new();
     for (i, p) in book.processes.iter().enumerate() {
-        if let Kind::Turbine(t) = &p.kind
-            && matches!(t.mode, Expansion::ShaftWork { .. })
-        {
+        if crate::kinds::of(&p.kind).takes_shaft_work() {
             match g.shaft_of[i] {
                 None => errors.push(BookError::Rule(format!(
                     "turbine \"{}\" takes its work from a shaft balance: name its shaft",
@@ -749,10 +738,8 @@ impl Engine {
             Ok(v) => v,
             Err(by) => return NodeOut::Blocked(by),
         };
-        let shaft_need = if matches!(
-            &p.kind,
-            Kind::Turbine(t) if matches!(t.mode, Expansion::ShaftWork { .. })
-        ) {
+        let kind = crate::kinds::of(&p.kind);
+        let shaft_need = if kind.takes_shaft_work() {
             match self.shaft_need(i) {
                 Ok(v) => v,
                 Err(e) if e.starts_with('\0') => return NodeOut::Blocked(e[1..].to_string()),
@@ -772,15 +759,18 @@ impl Engine {
             reference: self.reference(),
         };
         let to = &self.book.stations[self.graph.to_index[i]];
-        let to2 = match &p.kind {
-            Kind::Split(s) => self
-                .graph
-                .station_index
-                .get(&s.bypass)
-                .map(|&k| &self.book.stations[k]),
-            _ => None,
+        let to2 = kind
+            .second_output()
+            .and_then(|s| self.graph.station_index.get(s))
+            .map(|&k| &self.book.stations[k]);
+        let io = crate::kinds::Io {
+            name: &p.name,
+            from: p.from.as_deref().unwrap_or(""),
+            inputs: &inputs,
+            to,
+            to2,
         };
-        match compute::run(&ctx, p, &inputs, to, to2, tr) {
+        match compute::run(&ctx, p, &io, tr) {
             Ok(r) => NodeOut::Done(Box::new(r)),
             Err(m) => NodeOut::Failed(m),
         }
@@ -806,7 +796,7 @@ impl Engine {
                     air += r.air_in;
                     ke_out += r.exit_ke;
                     ke_in += r.entry_ke;
-                    if matches!(self.book.processes[i].kind, Kind::Nozzle(_)) {
+                    if crate::kinds::of(&self.book.processes[i].kind).discharges() {
                         nozzles += 1;
                     }
                 }
@@ -826,7 +816,7 @@ impl Engine {
             .graph
             .order
             .iter()
-            .find(|&&i| matches!(self.book.processes[i].kind, Kind::Entry(_)))
+            .find(|&&i| crate::kinds::of(&self.book.processes[i].kind).is_entry())
             .and_then(|&i| match &self.nodes[i] {
                 Some(NodeOut::Done(r)) => Some((r.out.tt, r.out.pt)),
                 _ => None,
@@ -1000,7 +990,7 @@ impl Engine {
                 }
                 let p = &self.book.processes[i];
                 v.push(Problem {
-                    place: format!("{} \"{}\"", compute::kind_name(&p.kind), p.name),
+                    place: format!("{} \"{}\"", crate::kinds::of(&p.kind).name(), p.name),
                     message: m.clone(),
                 });
             }

@@ -3,13 +3,9 @@
 
 use super::keymap::{Command, Keymap, key_of};
 use super::settings::{self, Settings};
-use crate::book::{
-    Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given, Heating,
-    Kind, Nozzle, Oblique, Process, Shape, Statics, Station, Turbine, Workbook,
-};
+use crate::book::{Duct, Given, Kind, Process, Statics, Station, Workbook};
 use crate::engine::{Engine, StationStatus, sweep};
 use crate::flow::Branch;
-use crate::flow::shock::Strength;
 use crate::format;
 use crate::units::{self, Quantity, UnitSystem};
 use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
@@ -520,33 +516,23 @@ impl App {
                 rows.push(PanelRow::Given(path));
             }
         }
-        let sets_own = producer.is_some_and(|p| {
-            matches!(
-                p.kind,
-                Kind::NormalShock
-                    | Kind::ObliqueShock(_)
-                    | Kind::Nozzle(_)
-                    | Kind::Heating(_)
-                    | Kind::Mixer(_)
-                    | Kind::Duct(Duct::Friction { .. })
-            ) || matches!(p.kind, Kind::Entry(Entry::Freestream { .. })) && st.statics.is_none()
-        });
-        if !sets_own {
+        let kind = producer.map(|p| crate::kinds::of(&p.kind));
+        if !kind.is_some_and(|k| k.sets_exit_statics(st)) {
             rows.push(PanelRow::Statics);
             rows.push(PanelRow::Branch);
         }
-        // A combustor in the measured mode derives its efficiency: the
-        // efficiency given is not read, so it is not offered.
-        let unread = producer.and_then(|p| match &p.kind {
-            Kind::Combustor(Combustor {
-                mode: Burn::Measured(_),
-                ..
-            }) => Some(format!("process.{}.efficiency", p.name)),
-            _ => None,
-        });
-        if let Some(pp) = pp {
+        // A given the current mode does not read is not offered.
+        let unread = |path: &str| {
+            kind.is_some_and(|k| {
+                k.unread_givens().iter().any(|u| {
+                    pp.as_deref()
+                        .is_some_and(|pp| path.strip_prefix(pp) == Some(*u))
+                })
+            })
+        };
+        if let Some(pp) = &pp {
             for (path, ..) in b.givens() {
-                if path.starts_with(&pp) && unread.as_deref() != Some(path.as_str()) {
+                if path.starts_with(pp.as_str()) && !unread(&path) {
                     rows.push(PanelRow::Given(path));
                 }
             }
@@ -561,20 +547,7 @@ impl App {
         let st = b.stations.get(station)?;
         let own = format!("station.{}.{key}", st.name);
         let p = &b.processes[e.producer_of(station)];
-        let proc_key = match (&p.kind, key) {
-            (Kind::Entry(Entry::Plenum { .. }), "tt" | "pt" | "w") => Some(key),
-            (Kind::Entry(Entry::ChokedPlenum { .. }), "tt" | "pt") => Some(key),
-            (Kind::Entry(Entry::Freestream { .. }), "w") => Some("w"),
-            (
-                Kind::Combustor(Combustor {
-                    mode: Burn::ExitTemperature(_),
-                    ..
-                }),
-                "tt",
-            ) => Some("exit_tt"),
-            (Kind::Heating(Heating::ExitTemperature(_)), "tt") => Some("exit_tt"),
-            _ => None,
-        };
+        let proc_key = crate::kinds::of(&p.kind).grid_given(key);
         // The station's own givens, read off the station (the same ones
         // `Workbook::givens` lists, without copying the workbook per cell:
         // that made one frame of a 50-station grid cost milliseconds).
@@ -689,7 +662,10 @@ impl App {
             Command::Delete => self.delete_station(),
             Command::Rename => self.rename(),
             Command::Kind => {
-                let items = KIND_NAMES.iter().map(|s| s.to_string()).collect();
+                let items = crate::kinds::offered()
+                    .into_iter()
+                    .map(|(label, _)| label.to_string())
+                    .collect();
                 self.popups.push(Popup::Choose {
                     title: "kind of the process into this station".into(),
                     items,
@@ -980,7 +956,8 @@ impl App {
             self.commit(nb, &format!("deleted station {name}"));
             return;
         };
-        if matches!(p.kind, Kind::Split(_) | Kind::Mixer(_)) {
+        let kind = crate::kinds::of(&p.kind);
+        if kind.second_input().is_some() || kind.second_output().is_some() {
             self.error("delete the second stream's stations first, or change this process's kind");
             return;
         }
@@ -991,11 +968,11 @@ impl App {
             if q.from.as_deref() == Some(&name) {
                 q.from = Some(upstream.clone());
             }
-            if let Kind::Mixer(m) = &mut q.kind
-                && m.secondary == name
-            {
-                m.secondary = upstream.clone();
-            }
+            crate::kinds::of_mut(&mut q.kind).visit_names_mut(&mut |of, s| {
+                if of == crate::kinds::NameOf::Input && *s == name {
+                    *s = upstream.clone();
+                }
+            });
         }
         nb.results = None;
         self.commit(
@@ -1021,11 +998,11 @@ impl App {
             if q.from.as_deref() == Some(&sel) {
                 q.from = Some(name.to_string());
             }
-            if let Kind::Mixer(m) = &mut q.kind
-                && m.secondary == sel
-            {
-                m.secondary = name.to_string();
-            }
+            crate::kinds::of_mut(&mut q.kind).visit_names_mut(&mut |of, s| {
+                if of == crate::kinds::NameOf::Input && *s == sel {
+                    *s = name.to_string();
+                }
+            });
         }
         let mut pname = format!("duct {name}");
         while nb.processes.iter().any(|p| p.name == pname) {
@@ -1085,64 +1062,50 @@ impl App {
     }
 
     fn do_rename_station(&mut self, i: usize, new: &str) {
-        let Some(b) = self.book().cloned() else {
+        let Some(old) = self
+            .book()
+            .and_then(|b| b.stations.get(i))
+            .map(|s| s.name.clone())
+        else {
             return;
         };
-        let new = new.trim();
-        let Some(old) = b.stations.get(i).map(|s| s.name.clone()) else {
-            return;
-        };
-        if new.is_empty() || (new != old && b.stations.iter().any(|s| s.name == new)) {
-            self.error(format!("station name \"{new}\" is empty or already used"));
-            return;
-        }
-        let mut nb = b;
-        nb.stations[i].name = new.to_string();
-        let fix = |s: &mut String| {
-            if *s == old {
-                *s = new.to_string();
-            }
-        };
-        for p in &mut nb.processes {
-            fix(&mut p.to);
-            if let Some(f) = &mut p.from {
-                fix(f);
-            }
-            match &mut p.kind {
-                Kind::Split(s) => fix(&mut s.bypass),
-                Kind::Mixer(m) => fix(&mut m.secondary),
-                _ => {}
-            }
-        }
-        nb.results = None;
-        self.commit(nb, &format!("renamed station {old} to {new}"));
+        self.rename_everywhere(crate::book::paths::Scope::Station, &old, new.trim());
     }
 
     fn do_rename_process(&mut self, i: usize, new: &str) {
-        let Some(b) = self.book().cloned() else {
+        let Some(old) = self
+            .book()
+            .and_then(|b| b.processes.get(i))
+            .map(|p| p.name.clone())
+        else {
             return;
         };
-        let new = new.trim();
-        if new.is_empty()
-            || b.processes
-                .iter()
-                .enumerate()
-                .any(|(j, p)| j != i && p.name == new)
-        {
-            self.error(format!("process name \"{new}\" is empty or already used"));
+        self.rename_everywhere(crate::book::paths::Scope::Process, &old, new.trim());
+    }
+
+    /// Rename a station or process in one undoable step: the workbook
+    /// updates its processes, goals, channel map and stored results; the
+    /// sweep shown follows the new name too.
+    fn rename_everywhere(&mut self, scope: crate::book::paths::Scope, old: &str, new: &str) {
+        use crate::book::paths::Scope;
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let (what, done) = match scope {
+            Scope::Station => ("station", nb.rename_station(old, new)),
+            Scope::Process => ("process", nb.rename_process(old, new)),
+            _ => ("shaft", nb.rename_shaft(old, new)),
+        };
+        if let Err(e) = done {
+            self.error(e.to_string());
             return;
         }
-        let mut nb = b;
-        let old = std::mem::replace(&mut nb.processes[i].name, new.to_string());
-        for g in &mut nb.goals {
-            for s in [&mut g.vary, &mut g.target] {
-                let pre = format!("process.{old}.");
-                if let Some(rest) = s.strip_prefix(&pre) {
-                    *s = format!("process.{new}.{rest}");
-                }
+        if let Some(sw) = &mut self.sweep {
+            for p in std::iter::once(&mut sw.vary).chain(sw.report.iter_mut()) {
+                crate::book::edit::rename_in_path(p, scope, old, new);
             }
         }
-        self.commit(nb, &format!("renamed process {old} to {new}"));
+        self.commit(nb, &format!("renamed {what} {old} to {new}"));
     }
 
     fn choose_statics(&mut self) {
@@ -1239,65 +1202,14 @@ impl App {
         };
         let pi = e.producer_of(self.row);
         let p = &mut nb.processes[pi];
-        let next = next_mode(&p.kind);
+        // The new mode starts from the process's figures now.
+        let next = crate::kinds::of(&p.kind).next_mode(e.process(&p.name));
         let Some(k) = next else {
             self.info("this kind of process has one mode");
             return;
         };
         p.kind = k;
-        // Coming back to a design mode from a measured or shaft mode, start
-        // from the machine's figures now, not from defaults.
-        if let Some(r) = e.process(&p.name) {
-            let fig = |k: &str| r.figure(k).map(|v| Given::raw(&fmt_num(v)));
-            match &mut p.kind {
-                Kind::Compressor(Compressor {
-                    mode:
-                        Compression::Design {
-                            pressure_ratio,
-                            efficiency,
-                            basis,
-                        },
-                    ..
-                })
-                | Kind::Turbine(Turbine {
-                    mode:
-                        Expansion::Design {
-                            pressure_ratio,
-                            efficiency,
-                            basis,
-                        },
-                    ..
-                }) => {
-                    if let Some(g) = fig("pressure_ratio") {
-                        *pressure_ratio = g;
-                    }
-                    let key = match basis {
-                        Basis::Isentropic => "eta_isentropic",
-                        Basis::Polytropic => "eta_polytropic",
-                    };
-                    if let Some(g) = fig(key).filter(|g| {
-                        crate::units::parse(g.text(), Quantity::Ratio, "e")
-                            .is_ok_and(|x| x.si > 0.0 && x.si <= 1.0)
-                    }) {
-                        *efficiency = g;
-                    }
-                }
-                Kind::Turbine(Turbine {
-                    mode: Expansion::ShaftWork { efficiency, basis },
-                    ..
-                }) => {
-                    let key = match basis {
-                        Basis::Isentropic => "eta_isentropic",
-                        Basis::Polytropic => "eta_polytropic",
-                    };
-                    if let Some(g) = fig(key) {
-                        *efficiency = g;
-                    }
-                }
-                _ => {}
-            }
-        }
-        let label = mode_label(&p.kind);
+        let label = crate::kinds::of(&p.kind).mode_label();
         self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
             self.error(crate::present::join(&es));
@@ -1315,7 +1227,8 @@ impl App {
         let Some(p) = nb.processes.get(pi) else {
             return;
         };
-        let (uses_tt, uses_pt) = crate::engine::compute::uses_measured(&p.kind);
+        let reads = crate::kinds::of(&p.kind).reads();
+        let (uses_tt, uses_pt) = (reads.measured_tt, reads.measured_pt);
         let to = p.to.clone();
         let now = self.engine.as_ref().and_then(|e| e.station(&to)).copied();
         let Some(st) = nb.stations.iter_mut().find(|s| s.name == to) else {
@@ -1325,13 +1238,16 @@ impl App {
             st.tt = None;
         } else if st.tt.is_none() {
             let tt = now.map_or(288.15, |v| v.tt);
-            st.tt = Some(g(&format!("{} K", crate::report::sig(tt, 6))));
+            st.tt = Some(Given::raw(&format!("{} K", crate::report::sig(tt, 6))));
         }
         if !uses_pt {
             st.pt = None;
         } else if st.pt.is_none() {
             let pt = now.map_or(101_325.0, |v| v.pt);
-            st.pt = Some(g(&format!("{} kPa", crate::report::sig(pt / 1000.0, 6))));
+            st.pt = Some(Given::raw(&format!(
+                "{} kPa",
+                crate::report::sig(pt / 1000.0, 6)
+            )));
         }
     }
 
@@ -1343,10 +1259,10 @@ impl App {
             return;
         };
         let pi = e.producer_of(self.row);
-        let Some(kind) = default_kind(idx) else {
+        let Some((label, kind)) = crate::kinds::offered().into_iter().nth(idx) else {
             return;
         };
-        let is_entry = matches!(kind, Kind::Entry(_));
+        let is_entry = crate::kinds::of(&kind).is_entry();
         let p = &mut nb.processes[pi];
         if is_entry != p.from.is_none() {
             self.error(if is_entry {
@@ -1362,7 +1278,6 @@ impl App {
             self.error(crate::present::join(&es));
             return;
         }
-        let label = KIND_NAMES.get(idx).copied().unwrap_or("");
         self.commit(nb, &format!("process is now a {label}"));
     }
 
@@ -2025,222 +1940,6 @@ fn statics_name(s: &Statics) -> &'static str {
         Statics::Pressure(_) => "static pressure",
         Statics::Velocity(_) => "velocity",
         Statics::Area(_) => "area",
-    }
-}
-
-/// Kinds offered by the kind chooser.
-pub const KIND_NAMES: [&str; 9] = [
-    "duct",
-    "combustor",
-    "Rayleigh heating",
-    "compressor",
-    "turbine",
-    "normal shock",
-    "oblique shock",
-    "nozzle",
-    "entry (plenum)",
-];
-
-fn g(s: &str) -> Given {
-    Given::raw(s)
-}
-
-fn default_kind(i: usize) -> Option<Kind> {
-    Some(match i {
-        0 => Kind::Duct(Duct::Recovery {
-            recovery: g("0.98"),
-        }),
-        1 => Kind::Combustor(Combustor {
-            mode: Burn::ExitTemperature(g("1400 K")),
-            pressure_loss: g("4 %"),
-            efficiency: g("0.99"),
-            lhv: g("43 MJ/kg"),
-            hc: g("1.92"),
-        }),
-        2 => Kind::Heating(Heating::Heat(g("100 kJ/kg"))),
-        3 => Kind::Compressor(Compressor {
-            mode: Compression::Design {
-                pressure_ratio: g("4"),
-                efficiency: g("0.86"),
-                basis: Basis::Isentropic,
-            },
-            shaft: None,
-        }),
-        4 => Kind::Turbine(Turbine {
-            mode: Expansion::Design {
-                pressure_ratio: g("2"),
-                efficiency: g("0.9"),
-                basis: Basis::Isentropic,
-            },
-            shaft: None,
-        }),
-        5 => Kind::NormalShock,
-        6 => Kind::ObliqueShock(Oblique {
-            deflection: g("10 deg"),
-            strength: Strength::Weak,
-        }),
-        7 => Kind::Nozzle(Nozzle {
-            shape: Shape::Convergent,
-            exit: Exit::Matched,
-            cv: g("0.98"),
-            cd: g("0.98"),
-        }),
-        8 => Kind::Entry(Entry::Plenum {
-            tt: g("288.15 K"),
-            pt: g("101.325 kPa"),
-            w: g("10 kg/s"),
-        }),
-        _ => return None,
-    })
-}
-
-/// The next mode of a process kind, keeping values where they carry over.
-pub fn next_mode(k: &Kind) -> Option<Kind> {
-    Some(match k {
-        Kind::Entry(Entry::Freestream { w }) => Kind::Entry(Entry::Plenum {
-            tt: g("288.15 K"),
-            pt: g("101.325 kPa"),
-            w: w.clone(),
-        }),
-        Kind::Entry(Entry::Plenum { tt, pt, .. }) => Kind::Entry(Entry::ChokedPlenum {
-            tt: tt.clone(),
-            pt: pt.clone(),
-            throat_area: g("0.01 m2"),
-        }),
-        Kind::Entry(Entry::ChokedPlenum { .. }) => {
-            Kind::Entry(Entry::Freestream { w: g("10 kg/s") })
-        }
-        Kind::Duct(d) => Kind::Duct(match d {
-            Duct::Recovery { .. } => Duct::LossCoefficient { k: g("0.5") },
-            Duct::LossCoefficient { .. } => Duct::MeasuredExit,
-            Duct::MeasuredExit => Duct::Friction {
-                length: g("1 m"),
-                diameter: g("0.1 m"),
-                friction: g("0.005"),
-            },
-            Duct::Friction { .. } => Duct::IntakeSchedule,
-            Duct::IntakeSchedule => Duct::Recovery {
-                recovery: g("0.98"),
-            },
-        }),
-        Kind::Combustor(c) => {
-            let mut c = c.clone();
-            c.mode = match &c.mode {
-                Burn::ExitTemperature(_) => Burn::FuelFlow(g("0.5 kg/s")),
-                Burn::FuelFlow(w) => Burn::Measured(w.clone()),
-                Burn::Measured(_) => Burn::ExitTemperature(g("1400 K")),
-            };
-            Kind::Combustor(c)
-        }
-        Kind::Heating(Heating::Heat(_)) => Kind::Heating(Heating::ExitTemperature(g("1000 K"))),
-        Kind::Heating(Heating::ExitTemperature(_)) => Kind::Heating(Heating::Heat(g("100 kJ/kg"))),
-        Kind::Compressor(c) => Kind::Compressor(Compressor {
-            mode: match &c.mode {
-                Compression::Design { .. } => Compression::Measured,
-                Compression::Measured => Compression::Design {
-                    pressure_ratio: g("4"),
-                    efficiency: g("0.86"),
-                    basis: Basis::Isentropic,
-                },
-            },
-            shaft: c.shaft.clone(),
-        }),
-        Kind::Turbine(t) => Kind::Turbine(Turbine {
-            mode: match &t.mode {
-                Expansion::Design {
-                    efficiency, basis, ..
-                } => Expansion::ShaftWork {
-                    efficiency: efficiency.clone(),
-                    basis: *basis,
-                },
-                Expansion::ShaftWork { .. } => Expansion::Measured,
-                Expansion::Measured => Expansion::Design {
-                    pressure_ratio: g("2"),
-                    efficiency: g("0.9"),
-                    basis: Basis::Isentropic,
-                },
-            },
-            shaft: t.shaft.clone(),
-        }),
-        Kind::ObliqueShock(o) => Kind::ObliqueShock(Oblique {
-            deflection: o.deflection.clone(),
-            strength: match o.strength {
-                Strength::Weak => Strength::Strong,
-                Strength::Strong => Strength::Weak,
-            },
-        }),
-        Kind::Nozzle(n) => {
-            let (shape, exit) = match (&n.shape, &n.exit) {
-                (Shape::Convergent, Exit::Matched) => (Shape::Convergent, Exit::Area(g("0.05 m2"))),
-                (Shape::Convergent, Exit::Area(a)) => {
-                    (Shape::ConvergentDivergent, Exit::Area(a.clone()))
-                }
-                (Shape::ConvergentDivergent, Exit::Area(_)) => {
-                    (Shape::ConvergentDivergent, Exit::Matched)
-                }
-                (Shape::ConvergentDivergent, Exit::Matched) => (Shape::Convergent, Exit::Matched),
-            };
-            Kind::Nozzle(Nozzle {
-                shape,
-                exit,
-                cv: n.cv.clone(),
-                cd: n.cd.clone(),
-            })
-        }
-        Kind::NormalShock | Kind::Split(_) | Kind::Mixer(_) => return None,
-    })
-}
-
-/// Human label of a process's kind and mode.
-pub fn mode_label(k: &Kind) -> String {
-    match k {
-        Kind::Entry(Entry::Freestream { .. }) => "entry: free stream from the ambient block".into(),
-        Kind::Entry(Entry::Plenum { .. }) => "entry: given Tt, pt and mass flow".into(),
-        Kind::Entry(Entry::ChokedPlenum { .. }) => {
-            "entry: given Tt, pt; flow from a choked throat".into()
-        }
-        Kind::Duct(Duct::Recovery { .. }) => "duct: pt recovery given".into(),
-        Kind::Duct(Duct::LossCoefficient { .. }) => "duct: loss coefficient on inlet q".into(),
-        Kind::Duct(Duct::MeasuredExit) => "duct: measured exit pt, recovery derived".into(),
-        Kind::Duct(Duct::Friction { .. }) => "duct: wall friction (Fanno)".into(),
-        Kind::Duct(Duct::IntakeSchedule) => {
-            "duct: intake recovery schedule from flight Mach".into()
-        }
-        Kind::Combustor(c) => match c.mode {
-            Burn::ExitTemperature(_) => "combustor: exit Tt given, fuel derived".into(),
-            Burn::FuelFlow(_) => "combustor: fuel flow given, exit Tt derived".into(),
-            Burn::Measured(_) => "combustor: measured exit Tt, efficiency derived".into(),
-        },
-        Kind::Heating(Heating::Heat(_)) => "Rayleigh heating: heat given".into(),
-        Kind::Heating(Heating::ExitTemperature(_)) => "Rayleigh heating: exit Tt given".into(),
-        Kind::Compressor(c) => match c.mode {
-            Compression::Design { .. } => "compressor: pressure ratio and efficiency given".into(),
-            Compression::Measured => {
-                "compressor: measured exit, PR and efficiencies derived".into()
-            }
-        },
-        Kind::Turbine(t) => match t.mode {
-            Expansion::Design { .. } => "turbine: expansion ratio and efficiency given".into(),
-            Expansion::ShaftWork { .. } => "turbine: work from the shaft balance".into(),
-            Expansion::Measured => "turbine: measured exit, efficiency derived".into(),
-        },
-        Kind::NormalShock => "normal shock".into(),
-        Kind::ObliqueShock(o) => {
-            format!("oblique shock ({:?} solution)", o.strength).to_lowercase()
-        }
-        Kind::Nozzle(n) => format!(
-            "nozzle: {}, {}",
-            match n.shape {
-                Shape::Convergent => "convergent",
-                Shape::ConvergentDivergent => "convergent-divergent",
-            },
-            match n.exit {
-                Exit::Matched => "exit area derived",
-                Exit::Area(_) => "exit area given",
-            }
-        ),
-        Kind::Split(_) => "split by bypass ratio".into(),
-        Kind::Mixer(_) => "constant-area mixer".into(),
     }
 }
 

@@ -5,7 +5,7 @@
 //! `..` (blocked upstream); undefined ones show `-`. The selection has a `>`
 //! marker as well as the reverse attribute, so none of this relies on colour.
 
-use super::app::{App, Focus, PanelRow, Popup, SetupRow, View, mode_label, station_problem};
+use super::app::{App, Focus, PanelRow, Popup, SetupRow, View, station_problem};
 use super::keymap::COMMANDS;
 use super::plot::{self, Series};
 use crate::book::paths::STATION_KEYS;
@@ -418,7 +418,10 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
     };
     let p = &e.book().processes[e.producer_of(app.row)];
     let mut lines = vec![Line::from(Span::styled(
-        format!("{}  [m mode, K kind]", mode_label(&p.kind)),
+        format!(
+            "{}  [m mode, K kind]",
+            crate::kinds::of(&p.kind).mode_label()
+        ),
         th.dim(),
     ))];
     // Why the station is not computed, whole (the status line may cut it).
@@ -495,7 +498,7 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
     let title = format!(
         " into {}: {} \"{}\" ",
         st.name,
-        crate::engine::compute::kind_name(&p.kind),
+        crate::kinds::of(&p.kind).name(),
         p.name
     );
     let title = if app.focus == Focus::Panel {
@@ -664,13 +667,14 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         if let (Some(a), Some(b)) = (from, to) {
             segs.push((a, b));
         }
-        if let crate::book::Kind::Mixer(m) = &p.kind
-            && let (Some(a), Some(b)) = (names.iter().position(|n| *n == m.secondary), to)
+        let kind = crate::kinds::of(&p.kind);
+        if let Some(second) = kind.second_input()
+            && let (Some(a), Some(b)) = (names.iter().position(|n| *n == second), to)
         {
             segs.push((a, b));
         }
-        if let crate::book::Kind::Split(s) = &p.kind
-            && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == s.bypass))
+        if let Some(second) = kind.second_output()
+            && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == second))
         {
             segs.push((a, b));
         }
