@@ -41,7 +41,7 @@ fn broken_channel_maps_and_goals_fail_the_check() {
         ("negative uncertainty", sheet.replacen("systematic: \"0.05 psi\"", "systematic: \"-0.05 psi\"", 1), "uncertainty"),
         ("negative percentage", sheet.replacen("systematic: \"0.05 %\"", "systematic: \"-5 %\"", 1), "0 to 100 %"),
         ("wrong unit", sheet.replacen("unit: \"rpm\"", "unit: \"psia\"", 1), "not a"),
-        ("no such given", sheet.replacen("given: \"shaft.rig.speed\"", "given: \"shaft.rig.bogus\"", 1), "no such given"),
+        ("no such given", sheet.replacen("given: \"shaft.rig.speed\"", "given: \"shaft.rig.bogus\"", 1), "shaft \"rig\" has no given \"bogus\"; its givens are mechanical_efficiency, speed"),
         (
             "zero weights",
             sheet.replacen(p2_weights, "weights: [0, 0, 0, 0],", 1),
@@ -64,7 +64,7 @@ fn broken_channel_maps_and_goals_fail_the_check() {
                 "    goals: [(vary: \"shaft.rig.speed\", target: \"summary.bogus\", value: \"1\", low: \"1000 rpm\", high: \"20000 rpm\")],\n    channels:",
                 1,
             ),
-            "goal 1: target",
+            "goal 1 target: summary.bogus: the summary block has no value \"bogus\"; its values are thrust_gross, ram_drag, thrust_net",
         ),
     ];
     for (what, text, needle) in cases {

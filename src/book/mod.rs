@@ -15,7 +15,7 @@ pub mod bounds;
 pub mod edit;
 pub mod paths;
 
-pub use paths::{Path, PathError};
+pub use paths::{AddressError, Path, PathError};
 
 use crate::flow::Branch;
 use crate::flow::shock::Strength;
@@ -787,6 +787,14 @@ pub enum BookError {
         range: String,
         /// Why the range is what it is.
         why: &'static str,
+    },
+    /// A reference (goal, channel) to a path that names nothing.
+    #[error("{whose}: {error}")]
+    Address {
+        /// Who refers ("goal 1 target", "channel 3").
+        whose: String,
+        /// What is wrong, with the valid keys.
+        error: Box<AddressError>,
     },
     /// Format version newer than this build.
     #[error(

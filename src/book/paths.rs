@@ -26,6 +26,25 @@ pub enum Scope {
     Summary,
 }
 
+impl Scope {
+    /// The scope as written in a path.
+    pub fn word(self) -> &'static str {
+        match self {
+            Scope::Ambient => "ambient",
+            Scope::Gas => "gas",
+            Scope::Station => "station",
+            Scope::Process => "process",
+            Scope::Shaft => "shaft",
+            Scope::Summary => "summary",
+        }
+    }
+
+    /// Whether paths of this scope carry a name (`station.NAME.KEY`).
+    pub fn named(self) -> bool {
+        matches!(self, Scope::Station | Scope::Process | Scope::Shaft)
+    }
+}
+
 /// A parsed path.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Path {
@@ -81,6 +100,64 @@ impl Path {
                 })
             }
         }
+    }
+}
+
+/// A path that parses but names nothing in this workbook. The message
+/// lists what that place does have, so a user need not guess.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum AddressError {
+    /// Not a path at all.
+    #[error(transparent)]
+    Syntax(#[from] PathError),
+    /// No station, process or shaft of that name.
+    #[error(
+        "{path}: the workbook has no {what} named \"{name}\"; its {what}s are {}",
+        list(have)
+    )]
+    NoPlace {
+        /// The path as written.
+        path: String,
+        /// "station", "process", "shaft".
+        what: &'static str,
+        /// The name asked for.
+        name: String,
+        /// The names there are.
+        have: Vec<String>,
+    },
+    /// The place exists but has no such key.
+    #[error(
+        "{path}: {place} has no {what} \"{key}\"; its {what}s are {}",
+        list(have)
+    )]
+    NoKey {
+        /// The path as written.
+        path: String,
+        /// The place in words ("process \"nozzle\" (nozzle)").
+        place: String,
+        /// "value" (anything readable) or "given" (what can be set).
+        what: &'static str,
+        /// The key asked for.
+        key: String,
+        /// The keys it has.
+        have: Vec<String>,
+    },
+    /// A given was asked for where only a derived value exists, or the
+    /// other way round.
+    #[error("{path}: {why}")]
+    Misplaced {
+        /// The path as written.
+        path: String,
+        /// What is wrong.
+        why: String,
+    },
+}
+
+fn list(v: &[String]) -> String {
+    if v.is_empty() {
+        "none".into()
+    } else {
+        v.join(", ")
     }
 }
 
@@ -174,21 +251,39 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 37] = [
     ("velocity_ratio", "V exit/V inlet", Quantity::Ratio),
 ];
 
-/// The quantity of a derived value path, if the key is known.
-pub fn quantity_of_derived(path: &str) -> Option<Quantity> {
-    let p = Path::parse(path).ok()?;
-    let table: &[(&str, &str, Quantity)] = match p.scope {
+/// Derived keys of the ambient block (the free stream): key, label, quantity.
+pub const AMBIENT_KEYS: [(&str, &str, Quantity); 6] = [
+    ("t", "static temperature", Quantity::Temperature),
+    ("p", "static pressure", Quantity::Pressure),
+    ("v", "flight speed", Quantity::Velocity),
+    ("mach", "flight Mach number", Quantity::Mach),
+    ("tt", "free-stream total temperature", Quantity::Temperature),
+    ("pt", "free-stream total pressure", Quantity::Pressure),
+];
+
+/// Derived keys of a shaft: key, label, quantity.
+pub const SHAFT_KEYS: [(&str, &str, Quantity); 3] = [
+    ("compressor_power", "power absorbed", Quantity::Power),
+    ("turbine_power", "power delivered", Quantity::Power),
+    ("imbalance", "power imbalance", Quantity::Power),
+];
+
+/// The table of derived keys of a scope.
+pub fn derived_keys(scope: Scope) -> &'static [(&'static str, &'static str, Quantity)] {
+    match scope {
         Scope::Station => &STATION_KEYS,
         Scope::Summary => &SUMMARY_KEYS,
         Scope::Process => &FIGURE_KEYS,
-        Scope::Shaft => &[
-            ("compressor_power", "", Quantity::Power),
-            ("turbine_power", "", Quantity::Power),
-            ("imbalance", "", Quantity::Power),
-        ],
-        _ => return None,
-    };
-    table
+        Scope::Shaft => &SHAFT_KEYS,
+        Scope::Ambient => &AMBIENT_KEYS,
+        Scope::Gas => &[],
+    }
+}
+
+/// The quantity of a derived value path, if the key is known.
+pub fn quantity_of_derived(path: &str) -> Option<Quantity> {
+    let p = Path::parse(path).ok()?;
+    derived_keys(p.scope)
         .iter()
         .find(|(k, _, _)| *k == p.key)
         .map(|(_, _, q)| *q)

@@ -6,6 +6,7 @@
 //! * 2: the workbook was read but some process has a problem (listed), or
 //!   `check`/`fmt --check` found a difference.
 
+mod addresses;
 mod atmosphere;
 pub mod common;
 mod diff;
@@ -68,6 +69,9 @@ enum Command {
     Reduce(reduce::Args),
     /// Measurement uncertainty of a workbook's derived values.
     Uncertainty(reduce::UncArgs),
+    /// Every path a workbook offers (givens and derived values) with its
+    /// unit and current value.
+    Addresses(addresses::Args),
 }
 
 /// Output format shared by the commands that print rows.
@@ -183,6 +187,7 @@ pub fn run() -> ExitCode {
         Command::Fmt(a) => files::fmt(a),
         Command::Reduce(a) => reduce::run(a),
         Command::Uncertainty(a) => reduce::uncertainty(a),
+        Command::Addresses(a) => addresses::run(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

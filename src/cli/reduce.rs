@@ -1,6 +1,6 @@
 //! `stationwise reduce` and `stationwise uncertainty`: scans through a workbook.
 
-use super::common::{self, quantity, with_unit};
+use super::common::{self, with_unit};
 use super::{Failure, OutFormat, Units};
 use crate::reduce::{self, Options, Plan, ScanResult};
 use std::io::{IsTerminal, Write};
@@ -304,7 +304,8 @@ pub(super) fn uncertainty(a: UncArgs) -> Result<u8, Failure> {
     };
     let system = a.units.into();
     for (k, r) in report.iter().enumerate() {
-        let q = quantity(r);
+        let q =
+            crate::engine::address::quantity(&engine, r).unwrap_or(crate::units::Quantity::Ratio);
         let v = engine.value(r).ok().flatten();
         let Some(v) = v else {
             println!("{r}: not computed");

@@ -1,19 +1,20 @@
 //! `stationwise sweep`: derived values over a range of one given.
 
-use super::common::{self, quantity, shown, unit_label};
+use super::common::{self, shown, unit_label};
 use super::{Failure, OutFormat, Units};
-use crate::engine::sweep;
+use crate::engine::{address, sweep};
 use crate::report::{Cell, Column, Table};
-use crate::units::{self, UnitSystem};
+use crate::units::{self, Quantity, UnitSystem};
 use std::path::PathBuf;
 
 /// WHAT paths: a given is `station.NAME.FIELD`, `process.NAME.FIELD`,
 /// `shaft.NAME.FIELD` or `ambient.FIELD` (for example
 /// `process.compressor.pressure_ratio`, `ambient.flight_mach`); a reported
 /// value is `station.NAME.KEY` (tt, pt, t, p, rho, v, a, mach, w, area, far,
-/// ht, s, wc, q, flow_function, gamma), `process.NAME.FIGURE` (as `eval`
-/// lists them), `shaft.NAME.imbalance` or `summary.KEY` (thrust_net, tsfc,
-/// ...). FROM and TO take units ("1300 K:1600 K:6"); STEPS equal steps give
+/// ht, s, wc, q, flow_function, gamma), `process.NAME.FIGURE`,
+/// `shaft.NAME.imbalance`, `summary.KEY` (thrust_net, tsfc, ...) or any
+/// given. `stationwise addresses FILE` lists every path of a workbook.
+/// FROM and TO take units ("1300 K:1600 K:6"); STEPS equal steps give
 /// STEPS + 1 rows.
 #[derive(Debug, clap::Args)]
 #[command(verbatim_doc_comment)]
@@ -35,18 +36,15 @@ pub(super) struct Args {
 }
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
-    let (book, engine) = common::open(&a.file)?;
+    let (_, engine) = common::open(&a.file)?;
     let (path, range) = a
         .vary
         .split_once('=')
         .ok_or_else(|| Failure::bad("--vary: use PATH=FROM:TO:STEPS"))?;
     let path = path.trim();
-    let q = book
-        .givens()
-        .into_iter()
-        .find(|(p, ..)| p == path)
-        .map(|(_, q, ..)| q)
-        .ok_or_else(|| Failure::bad(format!("--vary: no given at \"{path}\" in this workbook")))?;
+    let q = engine
+        .given_address(path)
+        .map_err(|e| Failure::bad(format!("--vary: {e}")))?;
     let parts: Vec<&str> = range.split(':').collect();
     let [from, to, steps] = parts.as_slice() else {
         return Err(Failure::bad("--vary: use PATH=FROM:TO:STEPS"));
@@ -73,9 +71,18 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     } else {
         a.units.into()
     };
-    let mut cols = vec![Column::new(path, path, &unit_label(q, system))];
     for r in &report {
-        cols.push(Column::new(r, r, &unit_label(quantity(r), system)));
+        engine
+            .value(r)
+            .map_err(|e| Failure::bad(format!("--report: {e}")))?;
+    }
+    let qs: Vec<Quantity> = report
+        .iter()
+        .map(|r| address::quantity(&engine, r).unwrap_or(Quantity::Ratio))
+        .collect();
+    let mut cols = vec![Column::new(path, path, &unit_label(q, system))];
+    for (r, q) in report.iter().zip(&qs) {
+        cols.push(Column::new(r, r, &unit_label(*q, system)));
     }
     // Say why a point has no value (choking, a rich mixture, ...): the
     // column is always there, since rows are written before the last point
@@ -106,8 +113,8 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 total += 1;
                 failed += u64::from(problem.is_some());
                 let mut row = vec![Cell::from(conv(x, q))];
-                for (r, v) in report.iter().zip(vals) {
-                    row.push(Cell::from(v.map(|v| conv(v, quantity(r)))));
+                for (q, v) in qs.iter().zip(vals) {
+                    row.push(Cell::from(v.map(|v| conv(v, *q))));
                 }
                 row.push(problem.map_or(Cell::Empty, Cell::from));
                 t.rows.push(row);

@@ -18,13 +18,14 @@
 //! The engine never touches files or terminals; the file format, the CLI and
 //! the TUI are front ends over it.
 
+pub mod address;
 pub mod compute;
 pub mod explain;
 pub mod sweep;
 
 use crate::atmosphere::{self, AltitudeKind};
-use crate::book::paths::{STATION_KEYS, SUMMARY_KEYS, Scope};
-use crate::book::{BookError, Condition, Flight, GasSettings, Path, PathError, Station, Workbook};
+use crate::book::paths::Scope;
+use crate::book::{BookError, Condition, Flight, GasSettings, Path, Station, Workbook};
 use crate::flow::{FlowState, isentropic, solve};
 use crate::gas::{Composition, GasModel, PerfectGas, T_REFERENCE, Thermo};
 use compute::{Ctx, ProcessResult};
@@ -496,6 +497,10 @@ impl Engine {
             evaluations: 0,
             book,
         };
+        let bad = e.check_references();
+        if !bad.is_empty() {
+            return Err(bad);
+        }
         e.recompute();
         Ok(e)
     }
@@ -1134,69 +1139,6 @@ impl Engine {
             "gamma" => gas()?.gamma(f.map_or(v.tt, |f| f.t)).ok(),
             _ => None,
         }
-    }
-
-    /// A derived value by path; `Ok(None)` when it is not computed here.
-    pub fn value(&self, path: &str) -> Result<Option<f64>, PathError> {
-        let p = Path::parse(path)?;
-        let bad = || PathError(path.to_string());
-        Ok(match p.scope {
-            Scope::Station => {
-                if !STATION_KEYS.iter().any(|(k, _, _)| *k == p.key) {
-                    return Err(bad());
-                }
-                if !self.graph.station_index.contains_key(&p.name) {
-                    return Err(bad());
-                }
-                self.station(&p.name)
-                    .and_then(|v| self.station_key(v, &p.key))
-            }
-            Scope::Process => {
-                if !self.graph.process_index.contains_key(&p.name) {
-                    return Err(bad());
-                }
-                self.process(&p.name).and_then(|r| r.figure(&p.key))
-            }
-            Scope::Summary => {
-                if !SUMMARY_KEYS.iter().any(|(k, _, _)| *k == p.key) {
-                    return Err(bad());
-                }
-                self.summary.get(&p.key)
-            }
-            Scope::Shaft => {
-                if !self.graph.shaft_index.contains_key(&p.name) {
-                    return Err(bad());
-                }
-                self.shaft(&p.name).and_then(|b| match p.key.as_str() {
-                    "compressor_power" => Some(b.compressor_power),
-                    "turbine_power" => Some(b.turbine_power),
-                    "imbalance" => Some(b.imbalance),
-                    _ => None,
-                })
-            }
-            Scope::Ambient => {
-                let a = self.ambient.as_ref().ok();
-                match p.key.as_str() {
-                    "t" => a.map(|a| a.flow.t),
-                    "p" => a.map(|a| a.flow.p),
-                    "v" => a.map(|a| a.flow.v),
-                    "mach" => a.map(|a| a.flow.mach),
-                    "tt" => a.map(|a| a.flow.tt),
-                    "pt" => a.map(|a| a.flow.pt),
-                    _ => {
-                        // A given of the ambient block.
-                        return self
-                            .book
-                            .givens()
-                            .into_iter()
-                            .find(|(gp, ..)| gp == path)
-                            .map(|(_, _, _, si)| Some(si))
-                            .ok_or_else(bad);
-                    }
-                }
-            }
-            Scope::Gas => return Err(bad()),
-        })
     }
 
     /// The relations and numbers behind a station's values.

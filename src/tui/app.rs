@@ -807,6 +807,7 @@ impl App {
                 self.redo.clear();
                 self.modified = true;
                 self.info(what.to_string());
+                self.follow_book();
             }
             Err(e) => {
                 let _ = engine.replace_book(before);
@@ -815,6 +816,34 @@ impl App {
         }
         self.row = self.row.min(self.n_stations().saturating_sub(1));
         self.panel = 0;
+    }
+
+    /// After the workbook was replaced (an edit, undo or redo): the scan
+    /// browser's channel map is compiled again from the new workbook, so
+    /// renamed givens stay fed; a sweep whose varied given is gone is put
+    /// away rather than shown under a name that no longer exists.
+    fn follow_book(&mut self) {
+        let Some(book) = self.engine.as_ref().map(|e| e.book()) else {
+            return;
+        };
+        let mut closed = None;
+        if let Some(sb) = &mut self.scans {
+            match crate::reduce::Plan::new(book, &sb.header) {
+                Ok(plan) => sb.plan = plan,
+                Err(e) => closed = Some(e.to_string()),
+            }
+        }
+        if self
+            .sweep
+            .as_ref()
+            .is_some_and(|sw| book.given(&sw.vary).is_none())
+        {
+            self.sweep = None;
+        }
+        if let Some(e) = closed {
+            self.scans = None;
+            self.error(format!("scan browser closed: {e}"));
+        }
     }
 
     fn undo(&mut self) {
@@ -828,6 +857,7 @@ impl App {
                 self.redo.push(cur);
                 self.modified = true;
                 self.info("undone");
+                self.follow_book();
             }
         }
         self.row = self.row.min(self.n_stations().saturating_sub(1));
@@ -845,6 +875,7 @@ impl App {
                 self.undo.push(cur);
                 self.modified = true;
                 self.info("redone");
+                self.follow_book();
             }
         }
         self.row = self.row.min(self.n_stations().saturating_sub(1));
