@@ -3,7 +3,10 @@
 //! Module map (arrows point the only way dependencies go):
 //!
 //! * [`units`]: parsing and printing values with units; SI inside.
+//! * [`roots`]: the bracketed root finders (safeguarded Newton, Brent,
+//!   golden section, Simpson), each with its stop reason. Uses nothing.
 //! * [`gas`]: gas models (calorically and thermally perfect, mixtures, fuels).
+//!   Uses `roots` for its inversions.
 //! * [`flow`]: flow relations (isentropic, shocks, Rayleigh, Fanno,
 //!   compression and expansion, combustion) and their solvers. Uses `gas`.
 //! * [`atmosphere`]: the standard atmosphere and standard-day corrections.
@@ -42,6 +45,7 @@ pub mod kinds;
 pub mod present;
 pub mod reduce;
 pub mod report;
+pub mod roots;
 pub mod table;
 pub mod templates;
 pub mod tui;

@@ -129,7 +129,13 @@ pub fn sig(v: f64, sig: usize) -> String {
             "-".to_string()
         };
     }
-    let mag = v.abs().log10().floor() as i32;
+    // The decade after rounding to `sig` digits: 0.99999999999 rounds to
+    // 1.00000 (six digits), not to 1.000000.
+    let sci = format!("{:.*e}", sig.saturating_sub(1), v);
+    let mag = sci
+        .rsplit_once('e')
+        .and_then(|(_, e)| e.parse::<i32>().ok())
+        .unwrap_or_else(|| v.abs().log10().floor() as i32);
     if !(-4..=9).contains(&mag) {
         return format!("{:.*e}", sig.saturating_sub(1), v);
     }
@@ -389,6 +395,10 @@ mod tests {
         assert_eq!(sig(-0.00001, 2), "-1.0e-5");
         assert_eq!(sig(-0.0001, 2), "-0.00010");
         assert_eq!(sig(-0.0004, 1), "-0.0004");
+        // Rounding that carries into the next decade keeps the digit count.
+        assert_eq!(sig(0.9999999999999998, 6), "1.00000");
+        assert_eq!(sig(99.99996, 6), "100.000");
+        assert_eq!(sig(0.99999, 6), "0.999990");
     }
 
     #[test]

@@ -894,3 +894,31 @@ fn diff_names_the_given_and_the_moved_values() {
     assert_eq!(out.status.code(), Some(0));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn a_goal_on_a_target_that_jumps_is_a_problem_with_the_stop_reason_not_a_met_goal() {
+    // The nozzle's choked flag is 0 below a compressor pressure ratio of
+    // about 2.9 and 1 above it (the flag and the nozzle pressure ratio are
+    // read off a sweep of this demo): no pressure ratio gives 0.5. Before,
+    // the root finder closed its bracket on the jump and reported the goal
+    // met, with a choked flag of 0 or 1 on screen.
+    let text = turbojet_text().replacen(
+        "    shafts:",
+        "    goals: [(vary: \"process.compressor.pressure_ratio\", target: \"process.nozzle.choked\", value: \"0.5\", low: \"1.5\", high: \"5\")],\n    shafts:",
+        1,
+    );
+    let e = engine_of(&text);
+    let outcome = &e.goal_outcomes()[0];
+    assert_eq!(outcome.value, None);
+    let problems = e.problems();
+    let p = problems.iter().find(|p| p.place == "goal 1").unwrap();
+    assert!(
+        p.message
+            .starts_with("no convergence: process.nozzle.choked jumps across 0.5")
+            && p.message.contains("process.compressor.pressure_ratio"),
+        "{}",
+        p.message
+    );
+    // The varied given is left where the user put it (10 in the demo).
+    assert_eq!(value(&e, "process.compressor.pressure_ratio"), 10.0);
+}

@@ -937,8 +937,19 @@ impl Engine {
                             iterations,
                             residual,
                         }) => format!(
-                            "no convergence after {iterations} trials (residual {residual:.3e})"
+                            "no convergence: stopped at the cap of {iterations} trials (residual {:+.3} %)",
+                            residual * 100.0
                         ),
+                        solve::SolveError::Stopped(solve::Failure::Jump { at, residual }) => {
+                            format!(
+                                "no convergence: {} jumps across {} where {} = {} (SI), missing it by {:+.3} % on the nearer side; it takes no value in between",
+                                g.target,
+                                g.value.text(),
+                                g.vary,
+                                crate::report::sig(at, 6),
+                                residual * 100.0
+                            )
+                        }
                     };
                     // Leave the varied given where the user put it.
                     if let Some(x) = original {

@@ -14,7 +14,7 @@
 //! * [`turbo`]: compression and expansion with isentropic or polytropic
 //!   efficiency.
 //! * [`combustion`]: fuel-air ratio and exit temperature energy balance.
-//! * [`solve`]: the bracketed root finders, with stop reasons.
+//! * [`solve`]: the bracketed root finders ([`crate::roots`]), with stop reasons.
 //!
 //! Invariants: SI units everywhere; total temperature is conserved by every
 //! adiabatic relation to round-off; a request outside a relation's domain is
@@ -25,7 +25,7 @@ pub mod fanno;
 pub mod isentropic;
 pub mod rayleigh;
 pub mod shock;
-pub mod solve;
+pub use crate::roots as solve;
 pub mod turbo;
 
 use crate::gas::GasError;
@@ -135,9 +135,9 @@ impl FlowError {
                 iterations,
                 residual,
             },
-            solve::SolveError::Stopped(solve::Failure::NoRoot { .. }) => {
-                FlowError::NoSolution { what }
-            }
+            solve::SolveError::Stopped(
+                solve::Failure::NoRoot { .. } | solve::Failure::Jump { .. },
+            ) => FlowError::NoSolution { what },
         }
     }
 }

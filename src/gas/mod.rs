@@ -60,6 +60,18 @@ pub enum GasError {
         /// Why it is refused.
         why: &'static str,
     },
+    /// An inversion stopped at its iteration cap without converging.
+    #[error(
+        "{what}: no convergence, stopped at the cap of {iterations} iterations (residual {residual:.3e})"
+    )]
+    NoConvergence {
+        /// The relation inverted ("T from h").
+        what: &'static str,
+        /// Iterations made.
+        iterations: u32,
+        /// The last residual.
+        residual: f64,
+    },
     /// Fuel-air ratio above stoichiometric: lean-products model does not apply.
     #[error(
         "fuel-air ratio {far:.5} is above stoichiometric ({stoich:.5}); only lean combustion products are modelled"
@@ -337,7 +349,9 @@ fn cached_mixture(c: &Composition) -> Mixture {
 /// property (h or phi) inside the gas's range: bracketed Newton on `cp` (or
 /// `cp/T`), used by every relation that inverts h or phi.
 pub fn invert_h<G: Thermo + ?Sized>(gas: &G, h_target: f64, guess: f64) -> Result<f64, GasError> {
-    invert(gas, h_target, guess, |g, t| Ok((g.h(t)?, g.cp(t)?)))
+    invert(gas, h_target, guess, INVERT_CAP, "T from h", |g, t| {
+        Ok((g.h(t)?, g.cp(t)?))
+    })
 }
 
 /// Temperature at which `phi(T)` equals `phi_target`.
@@ -346,15 +360,24 @@ pub fn invert_phi<G: Thermo + ?Sized>(
     phi_target: f64,
     guess: f64,
 ) -> Result<f64, GasError> {
-    invert(gas, phi_target, guess, |g, t| Ok((g.phi(t)?, g.cp(t)? / t)))
+    invert(gas, phi_target, guess, INVERT_CAP, "T from phi", |g, t| {
+        Ok((g.phi(t)?, g.cp(t)? / t))
+    })
 }
+
+/// Most Newton steps a temperature inversion may take. A handful is
+/// usual; bisection over the whole range would need about 60.
+pub const INVERT_CAP: u32 = 200;
 
 fn invert<G: Thermo + ?Sized>(
     gas: &G,
     target: f64,
     guess: f64,
+    cap: u32,
+    what: &'static str,
     f: impl Fn(&G, f64) -> Result<(f64, f64), GasError>,
 ) -> Result<f64, GasError> {
+    use crate::roots::{Failure, SolveError, newton_monotone_floor};
     let (min, max) = gas.range();
     let (lo0, hi0) = (min.max(1e-6), max.min(1e7));
     let model = match max.is_finite() {
@@ -365,28 +388,23 @@ fn invert<G: Thermo + ?Sized>(
     if !target.is_finite() {
         return Err(out_of_range(f64::NAN));
     }
-    // Safeguarded Newton on a rising function; the ends of the range are
-    // only evaluated if the iterate runs into one of them.
-    let (mut lo, mut hi) = (lo0, hi0);
-    let mut t = if guess.is_finite() && guess > lo && guess < hi {
-        guess
-    } else {
-        0.5 * (lo + hi)
-    };
-    for _ in 0..200 {
-        let (v, d) = f(gas, t)?;
-        let r = v - target;
-        if r > 0.0 {
-            hi = t;
-        } else {
-            lo = t;
-        }
-        let mut next = t - r / d;
-        if !(next > lo && next < hi) {
-            next = 0.5 * (lo + hi);
-        }
-        if (next - t).abs() <= 1e-14 * t || hi - lo <= 1e-14 * t {
-            let near = |e: f64| (next - e).abs() <= 1e-9 * e;
+    // Safeguarded Newton on a rising function, converged on the step (the
+    // residual's scale differs between h and phi); the ends of the range
+    // are only evaluated if the iterate runs into one of them.
+    let r = newton_monotone_floor(
+        |t| f(gas, t).map(|(v, d)| (v - target, d)),
+        lo0,
+        hi0,
+        guess,
+        true,
+        1e-14,
+        0.0,
+        f64::INFINITY,
+        cap,
+    );
+    match r {
+        Ok(t) => {
+            let near = |e: f64| (t - e).abs() <= 1e-9 * e;
             if near(lo0) || near(hi0) {
                 let (f_lo, _) = f(gas, lo0)?;
                 let (f_hi, _) = f(gas, hi0)?;
@@ -397,17 +415,57 @@ fn invert<G: Thermo + ?Sized>(
                     return Err(out_of_range(hi0 * 1.001));
                 }
             }
-            return Ok(next);
+            Ok(t)
         }
-        t = next;
+        Err(SolveError::Inner(e)) => Err(e),
+        // The whole range lies on one side of the target.
+        Err(SolveError::Stopped(Failure::NoRoot { at_lo, .. })) => {
+            Err(out_of_range(if at_lo > 0.0 {
+                lo0 * 0.999
+            } else {
+                hi0 * 1.001
+            }))
+        }
+        Err(SolveError::Stopped(Failure::Jump { at, .. })) => Err(out_of_range(at)),
+        Err(SolveError::Stopped(Failure::IterationCap {
+            iterations,
+            residual,
+        })) => Err(GasError::NoConvergence {
+            what,
+            iterations,
+            residual,
+        }),
     }
-    Ok(t)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    #[test]
+    fn an_inversion_held_to_too_few_steps_says_so_instead_of_returning() {
+        // Forced: two Newton steps from 5000 K cannot reach the temperature
+        // whose thermally perfect h is that of 300 K (h is curved); the
+        // stop reason comes back instead of the last iterate.
+        let g = GasModel::Thermal.gas(&Composition::dry_air()).unwrap();
+        let target = g.h(300.0).unwrap();
+        let e = invert(&g, target, 5000.0, 2, "T from h", |g, t| {
+            Ok((g.h(t)?, g.cp(t)?))
+        })
+        .unwrap_err();
+        assert!(
+            matches!(e, GasError::NoConvergence { iterations: 2, .. }),
+            "{e}"
+        );
+        assert!(e.to_string().contains("cap of 2 iterations"), "{e}");
+        // With the normal cap the same inversion converges to 300 K.
+        assert_relative_eq!(
+            invert_h(&g, target, 5000.0).unwrap(),
+            300.0,
+            max_relative = 1e-12
+        );
+    }
 
     #[test]
     fn perfect_air_cp_is_gamma_r_over_gamma_minus_one() {

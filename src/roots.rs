@@ -1,6 +1,7 @@
-//! Root finders with explicit stop reasons.
+//! Root finders with explicit stop reasons, below the gas models.
 //!
-//! Every iterative relation in the crate goes through here: a safeguarded
+//! Every iterative relation in the crate goes through here, the gas
+//! models' temperature inversions included: a safeguarded
 //! Newton method on a monotone residual inside a bracket (Newton when the
 //! step stays inside, bisection when it does not), and a derivative-free
 //! Brent method for residuals without a cheap slope. Both cap their
@@ -15,6 +16,15 @@ pub enum Failure {
         /// Iterations made.
         iterations: u32,
         /// Last residual.
+        residual: f64,
+    },
+    /// The bracket closed on a jump: the residual changes sign there
+    /// without passing through zero (a target that switches, such as a
+    /// nozzle's choked flag).
+    Jump {
+        /// Where the bracket closed.
+        at: f64,
+        /// The residual there.
         residual: f64,
     },
     /// No sign change inside the bracket: no root there.
@@ -50,7 +60,7 @@ impl<E> From<E> for SolveError<E> {
 /// expected to be scaled to order one).
 #[allow(clippy::too_many_arguments)]
 pub fn newton_monotone<E>(
-    mut f: impl FnMut(f64) -> Result<(f64, f64), E>,
+    f: impl FnMut(f64) -> Result<(f64, f64), E>,
     lo: f64,
     hi: f64,
     x0: f64,
@@ -60,6 +70,25 @@ pub fn newton_monotone<E>(
     max_iter: u32,
 ) -> Result<f64, SolveError<E>> {
     let floor = (hi - lo).abs() * 1e-15;
+    newton_monotone_floor(f, lo, hi, x0, increasing, xtol, floor, rtol, max_iter)
+}
+
+/// [`newton_monotone`] with the absolute floor of the step tolerance
+/// given: a step counts as converged below `xtol |x| + floor`. The gas
+/// inversions use a zero floor (a purely relative tolerance), since their
+/// bracket reaches 10^7 K for a calorically perfect gas.
+#[allow(clippy::too_many_arguments)]
+pub fn newton_monotone_floor<E>(
+    mut f: impl FnMut(f64) -> Result<(f64, f64), E>,
+    lo: f64,
+    hi: f64,
+    x0: f64,
+    increasing: bool,
+    xtol: f64,
+    floor: f64,
+    rtol: f64,
+    max_iter: u32,
+) -> Result<f64, SolveError<E>> {
     let (mut lo, mut hi) = (lo, hi);
     let mut x = if x0 > lo && x0 < hi {
         x0
@@ -123,6 +152,9 @@ pub fn brent<E>(
     let (mut a, mut b) = (a, b);
     let mut fa = f(a)?;
     let mut fb = f(b)?;
+    // A continuous residual is tiny where the bracket closes; one that is
+    // still a good part of the residuals at the ends has jumped there.
+    let jump = 1e-3 * fa.abs().min(fb.abs());
     if fa == 0.0 {
         return Ok(a);
     }
@@ -143,7 +175,16 @@ pub fn brent<E>(
     let mut d = b - a;
     let mut mflag = true;
     for _ in 0..max_iter {
-        if fb == 0.0 || (b - a).abs() <= xtol * b.abs().max(1e-300) {
+        if fb == 0.0 {
+            return Ok(b);
+        }
+        if (b - a).abs() <= xtol * b.abs().max(1e-300) {
+            if fb.abs() > jump {
+                return Err(SolveError::Stopped(Failure::Jump {
+                    at: b,
+                    residual: fb,
+                }));
+            }
             return Ok(b);
         }
         let mut s = if fa != fc && fb != fc {
