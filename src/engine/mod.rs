@@ -78,10 +78,17 @@ pub enum StationStatus<'a> {
     Blocked(&'a str),
 }
 
+/// The outcome of one process in the last pass.
 #[derive(Debug, Clone, PartialEq)]
 enum NodeOut {
+    /// Computed.
     Done(Box<ProcessResult>),
+    /// The process itself could not be computed (the message says why).
     Failed(String),
+    /// The gas settings or the ambient block it reads failed: reported
+    /// once, at that source, not on every process that reads it.
+    NoSettings(String),
+    /// A process it depends on failed (that process's name).
     Blocked(String),
 }
 
@@ -695,18 +702,20 @@ impl Engine {
         }
     }
 
-    fn shaft_need(&self, i: usize) -> Result<Option<f64>, String> {
+    /// The power a shaft-work turbine must deliver, or the outcome that
+    /// stops it (a bad shaft given, a machine on the shaft not computed).
+    fn shaft_need(&self, i: usize) -> Result<Option<f64>, NodeOut> {
         let Some(k) = self.graph.shaft_of[i] else {
             return Ok(None);
         };
         let sh = &self.book.shafts[k];
         let eta_m = sh.mechanical_efficiency.si();
         if !(eta_m.is_finite() && eta_m > 0.0 && eta_m <= 1.0) {
-            return Err(format!(
+            return Err(NodeOut::Failed(format!(
                 "shaft \"{}\": mechanical efficiency {} must lie above 0 and at most 1",
                 sh.name,
                 sh.mechanical_efficiency.shown()
-            ));
+            )));
         }
         let offtake = sh.offtake.as_ref().map_or(0.0, |g| g.si());
         let mut absorbed = offtake;
@@ -723,7 +732,7 @@ impl Engine {
                         delivered -= r.power;
                     }
                 }
-                _ => return Err(format!("\0{}", self.book.processes[d].name)),
+                _ => return Err(NodeOut::Blocked(self.book.processes[d].name.clone())),
             }
         }
         Ok(Some(absorbed / eta_m - delivered))
@@ -733,11 +742,11 @@ impl Engine {
         let p = &self.book.processes[i];
         let model = match &self.model {
             Ok(m) => m,
-            Err(e) => return NodeOut::Failed(format!("gas settings: {e}")),
+            Err(e) => return NodeOut::NoSettings(format!("gas settings: {e}")),
         };
         let ambient = match &self.ambient {
             Ok(a) => a,
-            Err(e) => return NodeOut::Failed(format!("ambient: {e}")),
+            Err(e) => return NodeOut::NoSettings(format!("ambient: {e}")),
         };
         let inputs = match self.node_inputs(i) {
             Ok(v) => v,
@@ -747,8 +756,7 @@ impl Engine {
         let shaft_need = if kind.takes_shaft_work() {
             match self.shaft_need(i) {
                 Ok(v) => v,
-                Err(e) if e.starts_with('\0') => return NodeOut::Blocked(e[1..].to_string()),
-                Err(e) => return NodeOut::Failed(e),
+                Err(out) => return out,
             }
         } else {
             None
@@ -1001,9 +1009,6 @@ impl Engine {
         }
         for &i in &self.graph.order {
             if let Some(NodeOut::Failed(m)) = &self.nodes[i] {
-                if m.starts_with("ambient: ") || m.starts_with("gas settings: ") {
-                    continue;
-                }
                 let p = &self.book.processes[i];
                 v.push(Problem {
                     place: format!("{} \"{}\"", crate::kinds::of(&p.kind).name(), p.name),
@@ -1164,7 +1169,7 @@ impl Engine {
         let out = self.evaluate(p, &mut Tracer::on(&mut steps));
         match out {
             NodeOut::Done(_) => {}
-            NodeOut::Failed(m) => return Err(m),
+            NodeOut::Failed(m) | NodeOut::NoSettings(m) => return Err(m),
             NodeOut::Blocked(by) => {
                 return Err(format!("blocked by a problem upstream in \"{by}\""));
             }

@@ -96,18 +96,17 @@ pub(super) fn seed_efficiency(now: Option<&ProcessResult>, basis: Basis, fallbac
     seed(v, 1.0, "", fallback)
 }
 
-/// What the kind chooser offers.
+/// What the kind chooser offers: a pressure ratio of 4 at 0.86.
 pub fn fresh() -> Vec<(&'static str, Kind)> {
+    let (pressure_ratio, efficiency) = (Given::raw("4"), Given::raw("0.86"));
+    let mode = Compression::Design {
+        pressure_ratio,
+        efficiency,
+        basis: Basis::Isentropic,
+    };
     vec![(
         "compressor",
-        Kind::Compressor(Compressor {
-            mode: Compression::Design {
-                pressure_ratio: Given::raw("4"),
-                efficiency: Given::raw("0.86"),
-                basis: Basis::Isentropic,
-            },
-            shaft: None,
-        }),
+        Kind::Compressor(Compressor { mode, shaft: None }),
     )]
 }
 

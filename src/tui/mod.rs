@@ -17,16 +17,21 @@ pub mod ui;
 use app::App;
 use crossterm::event::{self, Event, KeyEventKind};
 use crossterm::execute;
-use crossterm::terminal::{self, EnterAlternateScreen, LeaveAlternateScreen};
+use crossterm::terminal::{self, EnterAlternateScreen};
 use ratatui::Terminal;
 use ratatui::backend::CrosstermBackend;
 use std::io;
 use std::path::Path;
 use std::time::Duration;
 
+/// Leave raw mode and the alternate screen (ratatui's own restore), and
+/// show the cursor. Errors are ignored: on a dropped link there is no
+/// terminal left to restore. ratatui's `init` is not used for set-up
+/// because its panic hook reports a failed restore with `eprintln!`, which
+/// itself panics when standard error is the terminal that went away.
 fn restore() {
-    let _ = terminal::disable_raw_mode();
-    let _ = execute!(io::stdout(), LeaveAlternateScreen, crossterm::cursor::Show);
+    let _ = ratatui::try_restore();
+    let _ = execute!(io::stdout(), crossterm::cursor::Show);
 }
 
 /// Options from the command line.

@@ -618,7 +618,7 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         .stations()
         .get(app.row)
         .map_or(String::new(), |s| s.name.clone());
-    let body: Vec<Line> = match present::explanation(e, &name, app.system) {
+    let body: Vec<Line> = match app.explanation(&name) {
         Ok(ls) => ls.into_iter().map(Line::from).collect(),
         Err(m) => vec![Line::from(Span::styled(
             format!("station {name}: {m}"),

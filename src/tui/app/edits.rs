@@ -1,0 +1,477 @@
+//! Model edits: every change to the workbook goes through `commit` (one undoable step, the engine recompiled), and undo and redo replace the whole workbook.
+
+use super::*;
+
+impl App {
+    /// Apply a typed value to a given: recompute at once, or refuse and keep the old one.
+    pub fn apply_edit(&mut self, path: &str, text: &str) -> Result<(), String> {
+        let Some(engine) = self.engine.as_mut() else {
+            return Err("no workbook".into());
+        };
+        let before = engine.book().clone();
+        engine.set_given(path, text).map_err(|e| e.to_string())?;
+        self.undo.push(before);
+        self.redo.clear();
+        self.modified = true;
+        let problems = self.engine.as_ref().map_or(0, |e| e.problems().len());
+        if problems > 0 {
+            self.error(format!(
+                "{path} = {text}: recomputed; {problems} problem(s), see the marked stations"
+            ));
+        } else {
+            self.info(format!("{path} = {text}: recomputed"));
+        }
+        Ok(())
+    }
+
+    /// Replace the workbook after a structural edit (kept undoable).
+    pub fn commit(&mut self, book: Workbook, what: &str) {
+        let Some(engine) = self.engine.as_mut() else {
+            return;
+        };
+        let before = engine.book().clone();
+        match engine.replace_book(book) {
+            Ok(()) => {
+                self.undo.push(before);
+                self.redo.clear();
+                self.modified = true;
+                self.info(what.to_string());
+                self.follow_book();
+            }
+            Err(e) => {
+                let _ = engine.replace_book(before);
+                self.error(format!("not done: {}", crate::present::join(&e)));
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = 0;
+    }
+
+    /// After the workbook was replaced (an edit, undo or redo): the scan
+    /// browser's channel map is compiled again from the new workbook, so
+    /// renamed givens stay fed; a sweep whose varied given is gone is put
+    /// away rather than shown under a name that no longer exists.
+    pub(super) fn follow_book(&mut self) {
+        let Some(book) = self.engine.as_ref().map(|e| e.book()) else {
+            return;
+        };
+        let mut closed = None;
+        if let Some(sb) = &mut self.scans {
+            match crate::reduce::Plan::new(book, &sb.header) {
+                Ok(plan) => sb.plan = plan,
+                Err(e) => closed = Some(e.to_string()),
+            }
+        }
+        if self
+            .sweep
+            .as_ref()
+            .is_some_and(|sw| book.given(&sw.vary).is_none())
+        {
+            self.sweep = None;
+        }
+        if let Some(e) = closed {
+            self.scans = None;
+            self.error(format!("scan browser closed: {e}"));
+        }
+    }
+
+    pub(super) fn undo(&mut self) {
+        let Some(prev) = self.undo.pop() else {
+            self.info("nothing to undo");
+            return;
+        };
+        if let Some(e) = self.engine.as_mut() {
+            let cur = e.book().clone();
+            if e.replace_book(prev).is_ok() {
+                self.redo.push(cur);
+                self.modified = true;
+                self.info("undone");
+                self.follow_book();
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = self.panel.min(self.panel_rows().len().saturating_sub(1));
+    }
+
+    pub(super) fn redo(&mut self) {
+        let Some(next) = self.redo.pop() else {
+            self.info("nothing to redo");
+            return;
+        };
+        if let Some(e) = self.engine.as_mut() {
+            let cur = e.book().clone();
+            if e.replace_book(next).is_ok() {
+                self.undo.push(cur);
+                self.modified = true;
+                self.info("redone");
+                self.follow_book();
+            }
+        }
+        self.row = self.row.min(self.n_stations().saturating_sub(1));
+        self.panel = self.panel.min(self.panel_rows().len().saturating_sub(1));
+    }
+
+    pub(super) fn station_name(&self, i: usize) -> Option<String> {
+        self.book()?.stations.get(i).map(|s| s.name.clone())
+    }
+
+    pub(super) fn delete_station(&mut self) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let Some(name) = self.station_name(self.row) else {
+            return;
+        };
+        let Some(pi) = b.processes.iter().position(|p| p.to == name) else {
+            self.error(
+                "this station is a split's second stream: delete or change the split instead",
+            );
+            return;
+        };
+        let p = &b.processes[pi];
+        let readers = b
+            .processes
+            .iter()
+            .filter(|q| q.from.as_deref() == Some(&name))
+            .count();
+        let Some(upstream) = p.from.clone() else {
+            if readers > 0 {
+                self.error("cannot delete the entry station while processes read it");
+                return;
+            }
+            let mut nb = b.clone();
+            nb.processes.remove(pi);
+            nb.stations.retain(|s| s.name != name);
+            self.commit(nb, &format!("deleted station {name}"));
+            return;
+        };
+        let kind = crate::kinds::of(&p.kind);
+        if kind.second_input().is_some() || kind.second_output().is_some() {
+            self.error("delete the second stream's stations first, or change this process's kind");
+            return;
+        }
+        let mut nb = b.clone();
+        nb.processes.remove(pi);
+        nb.stations.retain(|s| s.name != name);
+        for q in &mut nb.processes {
+            if q.from.as_deref() == Some(&name) {
+                q.from = Some(upstream.clone());
+            }
+            crate::kinds::of_mut(&mut q.kind).visit_names_mut(&mut |of, s| {
+                if of == crate::kinds::NameOf::Input && *s == name {
+                    *s = upstream.clone();
+                }
+            });
+        }
+        nb.results = None;
+        self.commit(
+            nb,
+            &format!("deleted station {name} and the process into it"),
+        );
+    }
+
+    pub(super) fn insert_station(&mut self, after: usize, name: &str) {
+        let Some(b) = self.book().cloned() else {
+            return;
+        };
+        let name = name.trim();
+        if name.is_empty() || b.stations.iter().any(|s| s.name == name) {
+            self.error(format!("station name \"{name}\" is empty or already used"));
+            return;
+        }
+        let Some(sel) = b.stations.get(after).map(|s| s.name.clone()) else {
+            return;
+        };
+        let mut nb = b.clone();
+        for q in &mut nb.processes {
+            if q.from.as_deref() == Some(&sel) {
+                q.from = Some(name.to_string());
+            }
+            crate::kinds::of_mut(&mut q.kind).visit_names_mut(&mut |of, s| {
+                if of == crate::kinds::NameOf::Input && *s == sel {
+                    *s = name.to_string();
+                }
+            });
+        }
+        let mut pname = format!("duct {name}");
+        while nb.processes.iter().any(|p| p.name == pname) {
+            pname.push('\'');
+        }
+        let at = nb
+            .processes
+            .iter()
+            .position(|p| p.to == sel)
+            .map_or(nb.processes.len(), |i| i + 1);
+        nb.processes.insert(
+            at,
+            Process {
+                name: pname,
+                from: Some(sel),
+                to: name.to_string(),
+                kind: Kind::Duct(Duct::Recovery {
+                    recovery: Given::raw("1"),
+                }),
+                note: String::new(),
+            },
+        );
+        nb.stations.insert(after + 1, Station::named(name));
+        if nb.resolve().is_err() {
+            self.error("internal: new station did not resolve");
+            return;
+        }
+        nb.results = None;
+        self.commit(
+            nb,
+            &format!("inserted station {name} with a loss-free duct into it"),
+        );
+        self.row = (after + 1).min(self.n_stations().saturating_sub(1));
+    }
+
+    pub(super) fn rename(&mut self) {
+        let Some(b) = self.book() else {
+            return;
+        };
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        if self.focus == Focus::Panel && self.view == View::Grid {
+            let pi = e.producer_of(self.row);
+            self.popups.push(Popup::Text {
+                title: "new name of the process".into(),
+                input: b.processes[pi].name.clone(),
+                purpose: TextFor::RenameProcess(pi),
+            });
+        } else if let Some(s) = b.stations.get(self.row) {
+            self.popups.push(Popup::Text {
+                title: "new name of the station".into(),
+                input: s.name.clone(),
+                purpose: TextFor::RenameStation(self.row),
+            });
+        }
+    }
+
+    pub(super) fn do_rename_station(&mut self, i: usize, new: &str) {
+        let Some(old) = self
+            .book()
+            .and_then(|b| b.stations.get(i))
+            .map(|s| s.name.clone())
+        else {
+            return;
+        };
+        self.rename_everywhere(crate::book::paths::Scope::Station, &old, new.trim());
+    }
+
+    pub(super) fn do_rename_process(&mut self, i: usize, new: &str) {
+        let Some(old) = self
+            .book()
+            .and_then(|b| b.processes.get(i))
+            .map(|p| p.name.clone())
+        else {
+            return;
+        };
+        self.rename_everywhere(crate::book::paths::Scope::Process, &old, new.trim());
+    }
+
+    /// Rename a station or process in one undoable step: the workbook
+    /// updates its processes, goals, channel map and stored results; the
+    /// sweep shown follows the new name too.
+    pub(super) fn rename_everywhere(
+        &mut self,
+        scope: crate::book::paths::Scope,
+        old: &str,
+        new: &str,
+    ) {
+        use crate::book::paths::Scope;
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let (what, done) = match scope {
+            Scope::Station => ("station", nb.rename_station(old, new)),
+            Scope::Process => ("process", nb.rename_process(old, new)),
+            _ => ("shaft", nb.rename_shaft(old, new)),
+        };
+        if let Err(e) = done {
+            self.error(e.to_string());
+            return;
+        }
+        if let Some(sw) = &mut self.sweep {
+            for p in std::iter::once(&mut sw.vary).chain(sw.report.iter_mut()) {
+                crate::book::edit::rename_in_path(p, scope, old, new);
+            }
+        }
+        self.commit(nb, &format!("renamed {what} {old} to {new}"));
+    }
+
+    pub(super) fn choose_statics(&mut self) {
+        let cur = self
+            .book()
+            .and_then(|b| b.stations.get(self.row))
+            .map_or(0, |s| match s.statics {
+                None => 0,
+                Some(Statics::Mach(_)) => 1,
+                Some(Statics::Pressure(_)) => 2,
+                Some(Statics::Velocity(_)) => 3,
+                Some(Statics::Area(_)) => 4,
+            });
+        self.popups.push(Popup::Choose {
+            title: "what fixes this station's static state".into(),
+            items: [
+                "nothing here (totals only)",
+                "Mach number",
+                "static pressure",
+                "velocity",
+                "flow area (Mach on the station's branch)",
+            ]
+            .iter()
+            .map(|s| s.to_string())
+            .collect(),
+            sel: cur,
+            purpose: ChooseFor::Statics,
+        });
+    }
+
+    pub(super) fn set_statics(&mut self, choice: usize) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let v = e.station(&nb.stations[self.row].name).copied();
+        let st = &mut nb.stations[self.row];
+        let f = v.and_then(|v| v.flow);
+        // New givens start from the values computed now, so the cycle
+        // stays where it was until the user edits them.
+        let next = match choice {
+            1 => Some(Statics::Mach(Given::raw(&fmt_num(
+                f.map_or(0.5, |f| f.mach),
+            )))),
+            2 => Some(Statics::Pressure(Given::raw(&format!(
+                "{} kPa",
+                fmt_num(f.map_or(100.0, |f| f.p / 1000.0))
+            )))),
+            3 => Some(Statics::Velocity(Given::raw(&format!(
+                "{} m/s",
+                fmt_num(f.map_or(100.0, |f| f.v))
+            )))),
+            4 => Some(Statics::Area(Given::raw(&format!(
+                "{} m2",
+                fmt_num(v.and_then(|v| v.area).unwrap_or(0.1))
+            )))),
+            _ => None,
+        };
+        st.statics = next;
+        let what = match &st.statics {
+            None => "static state not fixed at this station".to_string(),
+            Some(s) => format!("static state fixed by {}", statics_name(s)),
+        };
+        if nb.resolve().is_ok() {
+            self.commit(nb, &what);
+        }
+    }
+
+    pub(super) fn toggle_branch(&mut self) {
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let st = &mut nb.stations[self.row];
+        st.branch = match st.branch {
+            Some(Branch::Supersonic) => None,
+            _ => Some(Branch::Supersonic),
+        };
+        let what = if st.branch.is_some() {
+            "supersonic branch"
+        } else {
+            "subsonic branch"
+        };
+        self.commit(nb, what);
+    }
+
+    pub(super) fn cycle_mode(&mut self) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let p = &mut nb.processes[pi];
+        // The new mode starts from the process's figures now.
+        let next = crate::kinds::of(&p.kind).next_mode(e.process(&p.name));
+        let Some(k) = next else {
+            self.info("this kind of process has one mode");
+            return;
+        };
+        p.kind = k;
+        let label = crate::kinds::of(&p.kind).mode_label();
+        self.sync_measured(&mut nb, pi);
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(nb, &format!("mode: {label}"));
+        self.panel = 0;
+    }
+
+    /// Give the process's exit station the measured Tt and pt its new mode
+    /// reads (starting from the values computed now), and drop the ones it
+    /// no longer reads: the engine refuses a measured value that nothing
+    /// reads, and the panel offers no other way to add or remove them.
+    pub(super) fn sync_measured(&self, nb: &mut Workbook, pi: usize) {
+        let Some(p) = nb.processes.get(pi) else {
+            return;
+        };
+        let reads = crate::kinds::of(&p.kind).reads();
+        let (uses_tt, uses_pt) = (reads.measured_tt, reads.measured_pt);
+        let to = p.to.clone();
+        let now = self.engine.as_ref().and_then(|e| e.station(&to)).copied();
+        let Some(st) = nb.stations.iter_mut().find(|s| s.name == to) else {
+            return;
+        };
+        if !uses_tt {
+            st.tt = None;
+        } else if st.tt.is_none() {
+            let tt = now.map_or(288.15, |v| v.tt);
+            st.tt = Some(Given::raw(&format!("{} K", crate::report::sig(tt, 6))));
+        }
+        if !uses_pt {
+            st.pt = None;
+        } else if st.pt.is_none() {
+            let pt = now.map_or(101_325.0, |v| v.pt);
+            st.pt = Some(Given::raw(&format!(
+                "{} kPa",
+                crate::report::sig(pt / 1000.0, 6)
+            )));
+        }
+    }
+
+    pub(super) fn set_kind(&mut self, idx: usize) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let Some((label, kind)) = crate::kinds::offered().into_iter().nth(idx) else {
+            return;
+        };
+        let is_entry = crate::kinds::of(&kind).is_entry();
+        let p = &mut nb.processes[pi];
+        if is_entry != p.from.is_none() {
+            self.error(if is_entry {
+                "an entry takes no upstream station: pick it for the first station only"
+            } else {
+                "the first station needs an entry"
+            });
+            return;
+        }
+        p.kind = kind;
+        self.sync_measured(&mut nb, pi);
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(nb, &format!("process is now a {label}"));
+    }
+}
