@@ -129,13 +129,13 @@ pub fn sig(v: f64, sig: usize) -> String {
             "-".to_string()
         };
     }
-    // The decade after rounding to `sig` digits: 0.99999999999 rounds to
-    // 1.00000 (six digits), not to 1.000000.
-    let sci = format!("{:.*e}", sig.saturating_sub(1), v);
-    let mag = sci
-        .rsplit_once('e')
-        .and_then(|(_, e)| e.parse::<i32>().ok())
-        .unwrap_or_else(|| v.abs().log10().floor() as i32);
+    let mut mag = v.abs().log10().floor() as i32;
+    // Rounding to `sig` digits can carry into the next decade:
+    // 0.99999999999 is 1.00000 to six digits, not 1.000000.
+    let d = sig as i32 - 1 - mag;
+    if (v.abs() * 10f64.powi(d)).round() >= 10f64.powi(sig as i32) {
+        mag += 1;
+    }
     if !(-4..=9).contains(&mag) {
         return format!("{:.*e}", sig.saturating_sub(1), v);
     }

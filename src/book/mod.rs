@@ -98,16 +98,31 @@ impl GivenField<'_> {
     /// user states it (`stated`), only the hard ones when a sweep, goal or
     /// scan sets it (see [`bounds`]).
     pub fn check(&self, si: f64, text: &str, stated: bool) -> Result<(), BookError> {
+        self.check_with(si, || text.to_string(), stated)
+    }
+
+    /// [`Self::check`] for a value set by a program: its text is made only
+    /// when there is something to say (a sweep sets thousands of values).
+    pub fn check_si(&self, si: f64) -> Result<(), BookError> {
+        self.check_with(si, || crate::report::sig(si, 6), false)
+    }
+
+    fn check_with(
+        &self,
+        si: f64,
+        text: impl Fn() -> String,
+        stated: bool,
+    ) -> Result<(), BookError> {
         match bounds::of(self.scope, self.key, self.quantity) {
             Some(b) if (stated || b.hard) && !b.holds(si) => Err(BookError::OutOfRange {
                 field: self.path(),
-                text: text.to_string(),
+                text: text(),
                 range: b.describe(self.quantity),
                 why: b.why,
             }),
             _ if !si.is_finite() => Err(BookError::OutOfRange {
                 field: self.path(),
-                text: text.to_string(),
+                text: text(),
                 range: "a finite number".into(),
                 why: "not a number or infinite",
             }),

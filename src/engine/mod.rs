@@ -104,6 +104,10 @@ struct Graph {
     deps: Vec<Vec<usize>>,
     shaft_of: Vec<Option<usize>>,
     uses_ambient: Vec<bool>,
+    /// The process discharges to the ambient (a nozzle).
+    discharges: Vec<bool>,
+    /// The first entry in evaluation order (the inlet of corrections).
+    first_entry: Option<usize>,
     to_index: Vec<usize>,
 }
 
@@ -349,6 +353,7 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
         }
         g.uses_ambient[i] = kind.reads().ambient;
+        g.discharges.push(kind.discharges());
     }
     for (i, outs) in outputs.iter().enumerate() {
         for &s in outs {
@@ -480,6 +485,11 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
         }
     }
+    g.first_entry = g
+        .order
+        .iter()
+        .copied()
+        .find(|&i| crate::kinds::of(&book.processes[i].kind).is_entry());
     Ok(g)
 }
 
@@ -543,7 +553,7 @@ impl Engine {
         let mut found = None;
         self.book.visit_givens(&mut |f| {
             if f.is(path) {
-                let r = f.check(si, &crate::report::sig(si, 6), false);
+                let r = f.check_si(si);
                 if r.is_ok() {
                     f.given.set_si(si);
                 }
@@ -570,7 +580,7 @@ impl Engine {
             let mut found = None;
             self.book.visit_givens(&mut |f| {
                 if f.is(path) {
-                    let r = f.check(*si, &crate::report::sig(*si, 6), false);
+                    let r = f.check_si(*si);
                     if r.is_ok() {
                         f.given.set_si(*si);
                     }
@@ -809,7 +819,7 @@ impl Engine {
                     air += r.air_in;
                     ke_out += r.exit_ke;
                     ke_in += r.entry_ke;
-                    if crate::kinds::of(&self.book.processes[i].kind).discharges() {
+                    if self.graph.discharges[i] {
                         nozzles += 1;
                     }
                 }
@@ -825,15 +835,10 @@ impl Engine {
         s.air_flow = Some(air);
         s.fuel = Some(fuel);
         // Corrections use the totals of the first entry (the inlet).
-        let inlet = self
-            .graph
-            .order
-            .iter()
-            .find(|&&i| crate::kinds::of(&self.book.processes[i].kind).is_entry())
-            .and_then(|&i| match &self.nodes[i] {
-                Some(NodeOut::Done(r)) => Some((r.out.tt, r.out.pt)),
-                _ => None,
-            });
+        let inlet = self.graph.first_entry.and_then(|i| match &self.nodes[i] {
+            Some(NodeOut::Done(r)) => Some((r.out.tt, r.out.pt)),
+            _ => None,
+        });
         let (t_ref, p_ref) = self.reference();
         let corr = inlet.map(|(tt, pt)| ((tt / t_ref), (pt / p_ref)));
         if let Some((theta, delta)) = corr

@@ -13,6 +13,11 @@ use serde::{Deserialize, Serialize};
 pub struct Probe {
     /// pt_out/pt_in.
     pub keep: Given,
+    /// When set, the kept fraction goes through a root finder held to
+    /// this many iterations (x^3 = keep^3, a root the solver must find):
+    /// how the tests force a solver that does not converge.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cap: Option<u32>,
 }
 
 impl ProcessKind for Probe {
@@ -25,7 +30,7 @@ impl ProcessKind for Probe {
     }
 
     givens!(this, f => {
-        let Probe { keep } = this;
+        let Probe { keep, .. } = this;
         f("keep", Quantity::Ratio, keep);
     });
 
@@ -35,7 +40,22 @@ impl ProcessKind for Probe {
 
     fn run(&self, ctx: &Ctx, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
         let i = io.input()?;
-        let keep = ratio(&self.keep, "kept fraction", 0.0, 1.0)?;
+        let mut keep = ratio(&self.keep, "kept fraction", 0.0, 1.0)?;
+        if let Some(cap) = self.cap {
+            let k3 = keep.powi(3);
+            keep = crate::roots::newton_monotone(
+                |x| Ok::<_, crate::flow::FlowError>((x * x * x - k3, 3.0 * x * x)),
+                0.0,
+                1.0,
+                0.999,
+                true,
+                1e-14,
+                1e-15,
+                cap,
+            )
+            .map_err(|e| crate::flow::FlowError::from_solve("kept fraction from its cube", e))
+            .map_err(fe)?;
+        }
         let pt = keep * i.pt;
         step!(
             tr,
@@ -104,5 +124,33 @@ mod tests {
         let back = crate::format::parse(&text).unwrap();
         assert!(text.contains("Probe("), "{text}");
         assert_eq!(back.given("process.tap.keep").unwrap().1.text(), "1.5");
+    }
+
+    #[test]
+    fn a_solver_held_below_convergence_is_a_problem_naming_the_process_and_the_stop() {
+        // Forced: one Newton step from 0.999 cannot reach the cube root
+        // of 0.5^3; the stop reason reaches the problem list on the
+        // process, and the station after it is blocked rather than given
+        // the last iterate.
+        let text = SHEET.replace("Probe((keep: \"0.95\"))", "Probe((keep: \"0.5\", cap: 1))");
+        let e = Engine::new(crate::format::parse(&text).unwrap()).unwrap();
+        let p = e.problems();
+        assert_eq!(p.len(), 1, "{p:?}");
+        assert_eq!(p[0].place, "probe \"tap\"");
+        assert!(
+            p[0].message.contains("kept fraction from its cube")
+                && p[0]
+                    .message
+                    .contains("no converged solution after 1 iterations"),
+            "{}",
+            p[0].message
+        );
+        assert_eq!(e.value("station.2.pt").unwrap(), None);
+        // With room to converge the same process computes pt2 = 0.5 pt1.
+        let text = text.replace("cap: 1", "cap: 60");
+        let e = Engine::new(crate::format::parse(&text).unwrap()).unwrap();
+        assert!(e.problems().is_empty(), "{:?}", e.problems());
+        let pt = e.value("station.2.pt").unwrap().unwrap();
+        assert!((pt - 100_000.0).abs() < 1e-6, "{pt}");
     }
 }

@@ -275,9 +275,17 @@ pub type UncertaintyMap = std::collections::HashMap<String, crate::reduce::Uncer
 /// computed for and computed again only when those change.
 #[derive(Debug, Default)]
 pub struct Derived {
-    uncertainty: std::cell::RefCell<Option<(Workbook, usize, Columns, Option<UncertaintyMap>)>>,
-    walk: std::cell::RefCell<Option<(Workbook, String, UnitSystem, Result<Vec<String>, String>)>>,
+    uncertainty: std::cell::RefCell<Option<UncertaintyEntry>>,
+    walk: std::cell::RefCell<Option<WalkEntry>>,
 }
+
+/// Uncertainties with the workbook state, selected row and columns they
+/// were computed for.
+type UncertaintyEntry = (Workbook, usize, Columns, Option<UncertaintyMap>);
+
+/// An explanation with the workbook state, station and units it was
+/// computed for.
+type WalkEntry = (Workbook, String, UnitSystem, Result<Vec<String>, String>);
 
 /// Scans loaded for browsing.
 pub struct ScanBrowser {
