@@ -939,3 +939,33 @@ fn snapshot_problem() {
 fn snapshot_us_units() {
     snap_all("grid_us", "j j u");
 }
+
+#[test]
+fn a_mode_change_starts_from_the_figures_computed_now() {
+    // The nozzle goes from a derived exit area to a given one: the given
+    // starts at the area it has (six significant figures, taken as the
+    // sonic area it is), so thrust and flow stay as they were and no
+    // problem appears. Independent check: the thrust before the change.
+    let (mut app, _) = open();
+    let t0 = thrust(&app);
+    press(&mut app, "j j j j j Tab m");
+    let b = book(&app);
+    assert_eq!(
+        given_text(b, "process.nozzle.area").as_deref(),
+        Some("0.0485565 m2")
+    );
+    assert!(app.engine.as_ref().unwrap().problems().is_empty());
+    assert!(
+        rel_change(thrust(&app), t0) < 1e-6,
+        "{} vs {t0}",
+        thrust(&app)
+    );
+    // Back on the compressor, measured then design again: the design mode
+    // starts from the pressure ratio and efficiency the machine has now.
+    press(&mut app, "Esc k k k Tab m m");
+    let b = book(&app);
+    assert_eq!(
+        given_text(b, "process.compressor.pressure_ratio").as_deref(),
+        Some("10")
+    );
+}

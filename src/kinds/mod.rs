@@ -226,7 +226,11 @@ registry! {
 pub fn seed(now: Option<f64>, scale: f64, unit: &str, fallback: &str) -> Given {
     match now.filter(|v| v.is_finite()) {
         Some(v) => {
-            let n = crate::report::sig(v / scale, 6);
+            // Six significant digits, trailing zeros dropped ("1", not "1.00000").
+            let mut n = crate::report::sig(v / scale, 6);
+            if n.contains('.') && !n.contains('e') {
+                n = n.trim_end_matches('0').trim_end_matches('.').to_string();
+            }
             Given::raw(&if unit.is_empty() {
                 n
             } else {

@@ -152,14 +152,24 @@ fn nozzle(
             } else {
                 Branch::Subsonic
             };
-            let e = isentropic::from_flow(&g, i.tt, i.pt, i.w, a_eff, branch).map_err(|e| match e {
+            // An area given to six significant figures that is the sonic
+            // area (a user copying the derived area, or switching to a
+            // given area from a matched one) passes the flow at Mach 1:
+            // within 1e-6 the area is taken as exactly sonic.
+            let sonic_area = i.w / star.flux();
+            let e = if (a_eff - sonic_area).abs() <= 1e-6 * sonic_area {
+                Ok(star)
+            } else {
+                isentropic::from_flow(&g, i.tt, i.pt, i.w, a_eff, branch)
+            }
+            .map_err(|e| match e {
                 FlowError::Choked { max_flow, .. } => format!(
                     "the nozzle is too small for the flow: at these total conditions it passes at most {max_flow:.4} kg/s, and {:.4} kg/s arrives",
                     i.w
                 ),
                 e => e.to_string(),
             })?;
-            if e.mach < 1.0 && (e.p / p_amb - 1.0).abs() > 5e-3 {
+            if e.mach < 1.0 - 1e-9 && (e.p / p_amb - 1.0).abs() > 5e-3 {
                 return Err(format!(
                     "the exit area does not match the flow: a subsonic exit at p/p_ambient = {:.4}, but a subsonic jet leaves at ambient pressure; let the area be derived (exit: Matched) or vary an upstream given with a goal",
                     e.p / p_amb
