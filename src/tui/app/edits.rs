@@ -76,34 +76,35 @@ impl App {
     }
 
     pub(super) fn undo(&mut self) {
-        let Some(prev) = self.undo.pop() else {
-            self.info("nothing to undo");
-            return;
-        };
-        if let Some(e) = self.engine.as_mut() {
-            let cur = e.book().clone();
-            if e.replace_book(prev).is_ok() {
-                self.redo.push(cur);
-                self.modified = true;
-                self.info("undone");
-                self.follow_book();
-            }
-        }
-        self.row = self.row.min(self.n_stations().saturating_sub(1));
-        self.panel = self.panel.min(self.panel_rows().len().saturating_sub(1));
+        self.step_history(false);
     }
 
     pub(super) fn redo(&mut self) {
-        let Some(next) = self.redo.pop() else {
-            self.info("nothing to redo");
+        self.step_history(true);
+    }
+
+    /// Undo (`forward` false) or redo: the workbook from one stack replaces
+    /// the current one, which goes onto the other stack.
+    fn step_history(&mut self, forward: bool) {
+        let (from, done, none) = if forward {
+            (&mut self.redo, "redone", "nothing to redo")
+        } else {
+            (&mut self.undo, "undone", "nothing to undo")
+        };
+        let Some(book) = from.pop() else {
+            self.info(none);
             return;
         };
         if let Some(e) = self.engine.as_mut() {
             let cur = e.book().clone();
-            if e.replace_book(next).is_ok() {
-                self.undo.push(cur);
+            if e.replace_book(book).is_ok() {
+                if forward {
+                    self.undo.push(cur);
+                } else {
+                    self.redo.push(cur);
+                }
                 self.modified = true;
-                self.info("redone");
+                self.info(done);
                 self.follow_book();
             }
         }
