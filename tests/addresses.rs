@@ -183,6 +183,22 @@ fn paths_that_name_nothing_are_refused_with_the_keys_of_that_place() {
     );
     let _ = std::fs::remove_dir_all(p.parent().unwrap());
 
+    // A goal varying a given the compressor does not have.
+    let p = with_text(
+        "turbojet.ron",
+        "    shafts:",
+        "    goals: [(vary: \"process.compressor.bogus\", target: \"summary.thrust_net\", value: \"15 kN\", low: \"1\", high: \"2\")],\n    shafts:",
+        "vary",
+    );
+    let (code, _, err) = run(&["eval", p.to_str().unwrap()]);
+    assert_eq!(code, Some(1), "{err}");
+    assert!(
+        err.contains("goal 1 vary: process.compressor.bogus")
+            && err.contains("its givens are pressure_ratio, efficiency"),
+        "{err}"
+    );
+    let _ = std::fs::remove_dir_all(p.parent().unwrap());
+
     // A channel feeding a given the compressor does not have.
     let p = with_text(
         "turbojet.ron",
