@@ -66,6 +66,20 @@ fn broken_channel_maps_and_goals_fail_the_check() {
             ),
             "goal 1 target: summary.bogus: the summary block has no value \"bogus\"; its values are thrust_gross, ram_drag, thrust_net",
         ),
+        (
+            "two channels on one given",
+            sheet.replacen("given: \"station.2.tt\"", "given: \"process.inlet.tt\"", 1),
+            "process.inlet.tt: is fed by channel 1 already",
+        ),
+        (
+            "a goal target with a unit but no such key",
+            sheet.replacen(
+                "    channels:",
+                "    goals: [(vary: \"shaft.rig.speed\", target: \"station.2.nonsense\", value: \"1200 K\", low: \"1000 rpm\", high: \"20000 rpm\")],\n    channels:",
+                1,
+            ),
+            "station \"2\" has no value \"nonsense\"",
+        ),
     ];
     for (what, text, needle) in cases {
         assert_ne!(text, sheet, "{what}: the edit did not apply");

@@ -448,7 +448,7 @@ fn change_kind_then_undo() {
     }
     press(&mut app, "Enter");
     assert!(matches!(process(&app, "compressor").kind, Kind::Duct(_)));
-    assert!(status(&app).0.contains("now a duct"));
+    assert!(status(&app).0.contains("now: duct"));
     assert!(render_text(&app, 80, 24).contains("into 3: duct \"compressor\""));
     press(&mut app, "z");
     assert!(matches!(

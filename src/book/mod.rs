@@ -991,8 +991,21 @@ impl Workbook {
             }
         });
         // Goal values take the quantity of their target.
+        // A target naming neither a derived value nor a given is refused
+        // when the workbook compiles, with the keys of its place; its value
+        // is not read against a quantity guessed for it.
+        let target_q: Vec<Option<Quantity>> = self
+            .goals
+            .iter()
+            .map(|g| {
+                paths::quantity_of_derived(&g.target)
+                    .or_else(|| self.given(&g.target).map(|(q, _)| q))
+            })
+            .collect();
         for (i, goal) in self.goals.iter_mut().enumerate() {
-            let q = paths::quantity_of_derived(&goal.target).unwrap_or(Quantity::Ratio);
+            let Some(q) = target_q[i] else {
+                continue;
+            };
             if let Err(e) = goal.value.resolve(q, &format!("goal {} value", i + 1)) {
                 errors.push(e.into());
             }
@@ -1010,17 +1023,14 @@ impl Workbook {
             });
         }
         for (i, goal) in self.goals.iter_mut().enumerate() {
-            match bounds.iter().find(|(j, _)| *j == i) {
-                Some((_, q)) => {
-                    for (b, name) in [(&mut goal.low, "low"), (&mut goal.high, "high")] {
-                        if let Err(e) = b.resolve(*q, &format!("goal {} {name}", i + 1)) {
-                            errors.push(e.into());
-                        }
+            // A varied path naming no given is refused when the workbook
+            // compiles, with the givens that place has.
+            if let Some((_, q)) = bounds.iter().find(|(j, _)| *j == i) {
+                for (b, name) in [(&mut goal.low, "low"), (&mut goal.high, "high")] {
+                    if let Err(e) = b.resolve(*q, &format!("goal {} {name}", i + 1)) {
+                        errors.push(e.into());
                     }
                 }
-                // A varied path naming no given is refused when the
-                // workbook compiles, with the givens that place has.
-                None => {}
             }
         }
         if errors.is_empty() {

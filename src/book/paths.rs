@@ -112,7 +112,8 @@ pub enum AddressError {
     Syntax(#[from] PathError),
     /// No station, process or shaft of that name.
     #[error(
-        "{path}: the workbook has no {what} named \"{name}\"; its {what}s are {}",
+        "{path}: the workbook has no {what} named \"{name}\"; its {} are {}",
+        plural(what),
         list(have)
     )]
     NoPlace {
@@ -151,6 +152,13 @@ pub enum AddressError {
         /// What is wrong.
         why: String,
     },
+}
+
+fn plural(what: &str) -> String {
+    match what {
+        "process" => "processes".into(),
+        w => format!("{w}s"),
+    }
 }
 
 fn list(v: &[String]) -> String {

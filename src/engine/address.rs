@@ -158,14 +158,18 @@ impl Engine {
         let p = Path::parse(path)?;
         self.place_exists(path, &p)?;
         let derived = self.place_derived(p.scope, &p.name);
-        if derived.contains(&p.key.as_str()) {
-            return Ok(self.derived(&p));
-        }
-        self.place_givens(p.scope, &p.name)
+        let given = self
+            .place_givens(p.scope, &p.name)
             .into_iter()
             .find(|(k, ..)| *k == p.key)
-            .map(|(_, _, si)| Some(si))
-            .ok_or_else(|| self.no_key(path, &p, false))
+            .map(|(_, _, si)| si);
+        if derived.contains(&p.key.as_str()) {
+            // A key both given and reported reads the report; where the
+            // process could not be computed there is no value (a goal must
+            // not meet its target on a given the process did not reach).
+            return Ok(self.derived(&p));
+        }
+        given.map(Some).ok_or_else(|| self.no_key(path, &p, false))
     }
 
     /// A derived value of a path whose place and key exist.
@@ -259,6 +263,20 @@ impl Engine {
                     format!("channel {} ({})", i + 1, ch.columns.join(", ")),
                     self.given_address(&ch.given).map(|_| ()),
                 );
+                // Two channels feeding one given: the later would silently
+                // overwrite the earlier in every scan.
+                if let Some(j) = c.map[..i].iter().position(|o| o.given == ch.given) {
+                    push(
+                        format!("channel {} ({})", i + 1, ch.columns.join(", ")),
+                        Err(AddressError::Misplaced {
+                            path: ch.given.clone(),
+                            why: format!(
+                                "is fed by channel {} already; one given takes one channel (list every probe of a rake in that channel's columns)",
+                                j + 1
+                            ),
+                        }),
+                    );
+                }
             }
         }
         errors
@@ -279,22 +297,27 @@ impl Engine {
             let derived = self.place_derived(scope, name);
             for (k, q, si) in &givens {
                 // A key both given and reported (an entry's w, a nozzle's
-                // given exit area) reads the reported value, as `value`
-                // does; it is the given's value wherever the given is met.
-                let value = if derived.contains(&k.as_str()) {
+                // given exit area) shows the reported value, as `value`
+                // reads it; where the process failed, the value given.
+                let both = derived.contains(&k.as_str());
+                let value = if both {
                     self.derived(&Path {
                         scope,
                         name: name.to_string(),
                         key: k.clone(),
                     })
+                    .or(Some(*si))
                 } else {
                     Some(*si)
                 };
+                // A label from the derived table only where the key means
+                // the same there (a compressor's "efficiency" given is not
+                // the combustion efficiency figure of that table).
                 out.push(Address {
                     path: format!("{prefix}{k}"),
                     given: true,
                     quantity: *q,
-                    label: label_of(scope, k),
+                    label: if both { label_of(scope, k) } else { "" },
                     value,
                 });
             }

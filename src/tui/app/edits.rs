@@ -425,7 +425,14 @@ impl App {
         let reads = crate::kinds::of(&p.kind).reads();
         let (uses_tt, uses_pt) = (reads.measured_tt, reads.measured_pt);
         let to = p.to.clone();
-        let now = self.engine.as_ref().and_then(|e| e.station(&to)).copied();
+        // The exit's values now, or, where the exit is not computed (the
+        // mode before failed), the upstream station's: a start from the
+        // flow that arrives rather than from the ambient.
+        let now = self.engine.as_ref().and_then(|e| {
+            e.station(&to)
+                .or_else(|| p.from.as_deref().and_then(|f| e.station(f)))
+                .copied()
+        });
         let Some(st) = nb.stations.iter_mut().find(|s| s.name == to) else {
             return;
         };
@@ -473,6 +480,6 @@ impl App {
             self.error(crate::present::join(&es));
             return;
         }
-        self.commit(nb, &format!("process is now a {label}"));
+        self.commit(nb, &format!("process is now: {label}"));
     }
 }
