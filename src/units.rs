@@ -601,6 +601,21 @@ pub enum UnitError {
         /// The field's accepted units, as [`accepted`] lists them.
         accepted: String,
     },
+    /// A bare number typed where the screen shows a unit: refused rather
+    /// than read in the SI base unit (60 typed under "psia" is not 60 Pa).
+    #[error(
+        "{field} \"{text}\": say the unit ({}); a number without one would be read in {}",
+        accepted(*.expected),
+        .expected.default_unit().symbol
+    )]
+    NoUnit {
+        /// The field's label.
+        field: String,
+        /// What was typed.
+        text: String,
+        /// What the field holds.
+        expected: Quantity,
+    },
     /// NaN, infinity, or a number that overflows once converted to SI.
     #[error("{field} \"{text}\": not a finite number")]
     NotFinite {
@@ -846,6 +861,25 @@ fn split_number(text: &str) -> (&str, &str) {
 fn names_non_finite(text: &str) -> bool {
     let lower = text.trim_start_matches(['+', '-']).to_ascii_lowercase();
     lower.starts_with("inf") || lower.starts_with("nan")
+}
+
+/// Parse what a user typed at a prompt or on the command line: as
+/// [`parse`], but a dimensional quantity must say its unit (zero excepted,
+/// where the unit makes no difference but for temperatures).
+pub fn parse_stated(text: &str, quantity: Quantity, field: &str) -> Result<Parsed, UnitError> {
+    let bare = text.trim().parse::<f64>().ok();
+    let dimensional = !matches!(quantity, Quantity::Ratio | Quantity::Mach);
+    if let Some(v) = bare
+        && dimensional
+        && (v != 0.0 || quantity == Quantity::Temperature)
+    {
+        return Err(UnitError::NoUnit {
+            field: field.to_string(),
+            text: text.trim().to_string(),
+            expected: quantity,
+        });
+    }
+    parse(text, quantity, field)
 }
 
 /// Parse what an engineer typed into a field holding `quantity`.
@@ -1098,6 +1132,38 @@ mod tests {
 
     fn err(text: &str, quantity: Quantity, field: &str) -> UnitError {
         parse(text, quantity, field).unwrap_err()
+    }
+
+    #[test]
+    fn a_stated_value_with_a_dimension_must_say_its_unit() {
+        // 60 typed under "psia" is not 60 Pa: refused, with the units.
+        let e = parse_stated("60", Quantity::Pressure, "pt").unwrap_err();
+        assert!(matches!(e, UnitError::NoUnit { .. }), "{e}");
+        assert!(
+            e.to_string().contains("psia") && e.to_string().contains("read in Pa"),
+            "{e}"
+        );
+        assert!(parse_stated("300", Quantity::Temperature, "tt").is_err());
+        assert!(parse_stated("0", Quantity::Temperature, "tt").is_err());
+        // Zero of a pressure, length or speed is zero in any unit; ratios
+        // and Mach numbers have no unit to say.
+        assert_eq!(
+            parse_stated("0", Quantity::Length, "altitude").unwrap().si,
+            0.0
+        );
+        assert_eq!(
+            parse_stated("0.98", Quantity::Ratio, "cv").unwrap().si,
+            0.98
+        );
+        assert_eq!(parse_stated("2.5", Quantity::Mach, "M").unwrap().si, 2.5);
+        // With the unit, as parse: 14.7 psia = 101352.9 Pa (1 psi = 6894.757 Pa, NIST SP 811).
+        assert_relative_eq!(
+            parse_stated("14.7 psia", Quantity::Pressure, "pt")
+                .unwrap()
+                .si,
+            14.7 * 6894.757293168,
+            max_relative = 1e-12
+        );
     }
 
     // ---- Exact definitions -------------------------------------------

@@ -8,6 +8,10 @@ impl App {
         let Some(engine) = self.engine.as_mut() else {
             return Err("no workbook".into());
         };
+        // A bare number under a shown unit is refused, not read in SI.
+        if let Some((q, _)) = engine.book().given(path) {
+            crate::units::parse_stated(text, q, path).map_err(|e| e.to_string())?;
+        }
         let before = engine.book().clone();
         engine.set_given(path, text).map_err(|e| e.to_string())?;
         self.undo.push(before);
