@@ -922,3 +922,28 @@ fn a_goal_on_a_target_that_jumps_is_a_problem_with_the_stop_reason_not_a_met_goa
     // The varied given is left where the user put it (10 in the demo).
     assert_eq!(value(&e, "process.compressor.pressure_ratio"), 10.0);
 }
+
+#[test]
+fn rayleigh_heating_of_a_stream_at_rest_is_a_problem_in_words_not_nan() {
+    // The static stand's free stream is at Mach 0: a constant-area heating
+    // line has no steady solution there. Before, the message quoted a
+    // temperature of NaN K.
+    let text = turbojet_text().replacen(
+        "kind: Duct(Recovery(\n                recovery: \"0.99\",\n            )),",
+        "kind: Heating(Heat(\"100 kJ/kg\")),",
+        1,
+    );
+    assert_ne!(text, turbojet_text(), "the edit did not apply");
+    let e = engine_of(&text);
+    let p = e.problems();
+    let heat = p
+        .iter()
+        .find(|p| p.place == "Rayleigh heating \"intake\"")
+        .unwrap();
+    assert!(
+        heat.message.contains("needs a moving inlet stream") && heat.message.contains("Mach 0"),
+        "{}",
+        heat.message
+    );
+    assert!(p.iter().all(|p| !p.message.contains("NaN")), "{p:?}");
+}

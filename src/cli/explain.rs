@@ -19,10 +19,12 @@ pub(super) struct Args {
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
     if engine.station_index(&a.station).is_none() {
+        let names: Vec<&str> = engine.stations().iter().map(|s| s.name.as_str()).collect();
         return Err(Failure::bad(format!(
-            "no station named \"{}\" in {}",
+            "no station named \"{}\" in {}; its stations are {}",
             a.station,
-            a.file.display()
+            a.file.display(),
+            names.join(", ")
         )));
     }
     let ls =

@@ -73,6 +73,11 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     } else {
         a.units.into()
     };
+    if report.is_empty() {
+        return Err(Failure::bad(
+            "--report: name at least one value (stationwise addresses FILE lists them)",
+        ));
+    }
     for r in &report {
         engine
             .value(r)

@@ -72,6 +72,14 @@ fn heating(
 ) -> Res<ProcessResult> {
     let g = gas(ctx, &i.comp)?;
     let s = need_statics(i, from, "Rayleigh heating")?;
+    // The Rayleigh line of a stream at rest is a single point: heat added
+    // to still gas in a constant area is not a steady flow process.
+    if !(s.mach > 0.0) {
+        return Err(format!(
+            "Rayleigh heating needs a moving inlet stream: station \"{from}\" is at Mach {:.4}; use a combustor, or give the station a Mach number, velocity or area",
+            s.mach
+        ));
+    }
     let q = match h {
         Heating::Heat(q) => q.si(),
         Heating::ExitTemperature(t) => {
