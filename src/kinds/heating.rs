@@ -74,7 +74,7 @@ fn heating(
     let s = need_statics(i, from, "Rayleigh heating")?;
     // The Rayleigh line of a stream at rest is a single point: heat added
     // to still gas in a constant area is not a steady flow process.
-    if !(s.mach > 0.0) {
+    if s.mach.is_nan() || s.mach <= 0.0 {
         return Err(format!(
             "Rayleigh heating needs a moving inlet stream: station \"{from}\" is at Mach {:.4}; use a combustor, or give the station a Mach number, velocity or area",
             s.mach
