@@ -1013,7 +1013,8 @@ pub fn display_unit(quantity: Quantity, system: UnitSystem) -> &'static Unit {
         (Q::Area, Si) => &M2,
         (Q::Area, Us) => &IN2,
         (Q::Length, Si) => &M,
-        (Q::Length, Us) => &IN,
+        // Feet: altitudes and duct lengths read naturally (472441 in did not).
+        (Q::Length, Us) => &FOOT,
         (Q::SpecificEnergy, Si) => &KJ_KG,
         (Q::SpecificEnergy, Us) => &BTU_LBM,
         (Q::SpecificHeat, Si) => &J_KG_K,
