@@ -308,9 +308,12 @@ fn undo_restores_the_thrust_exactly_and_redo_reapplies() {
     assert_eq!(thrust(&app).to_bits(), t0.to_bits());
     assert_eq!(given_text(book(&app), PR).as_deref(), Some("10"));
     assert_eq!(status(&app).0, "undone");
+    // Back at the state opened: nothing to save, no modified mark.
+    assert!(!app.modified);
     press(&mut app, "Z");
     assert_eq!(thrust(&app).to_bits(), t1.to_bits());
     assert_eq!(status(&app).0, "redone");
+    assert!(app.modified);
     press(&mut app, "ctrl-z");
     assert_eq!(thrust(&app).to_bits(), t0.to_bits());
     press(&mut app, "ctrl-y");

@@ -264,6 +264,9 @@ pub struct App {
     /// Uncertainties and explanations, computed once per workbook state
     /// and selection rather than in every frame.
     pub derived: Derived,
+    /// The canonical text of the workbook as last opened or saved (undo
+    /// back to it clears the modified mark).
+    pub saved_text: Option<String>,
 }
 
 /// Uncertainties of the grid's values, by path.
@@ -368,6 +371,7 @@ impl App {
             scans: None,
             scroll: 0,
             derived: Derived::default(),
+            saved_text: None,
         };
         if !bad.is_empty() {
             app.error(format!("settings: keys not understood: {}", bad.join("; ")));

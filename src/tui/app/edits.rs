@@ -107,7 +107,8 @@ impl App {
                 } else {
                     self.redo.push(cur);
                 }
-                self.modified = true;
+                // Back at the state last saved or opened: nothing to save.
+                self.modified = self.saved_text.as_deref() != Some(&format::to_text(e.book()));
                 self.info(done);
                 self.follow_book();
             }

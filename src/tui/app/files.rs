@@ -53,6 +53,7 @@ impl App {
     pub fn open(&mut self, path: &Path) -> Result<(), String> {
         let book = format::load(path).map_err(|e| format!("{}: {e}", path.display()))?;
         let engine = Engine::new(book).map_err(|e| crate::present::join(&e))?;
+        self.saved_text = Some(format::to_text(engine.book()));
         self.engine = Some(engine);
         self.path = Some(path.to_path_buf());
         self.disk = stamp(path);
@@ -157,6 +158,7 @@ impl App {
                 self.path = Some(path.to_path_buf());
                 self.disk = stamp(path);
                 self.modified = false;
+                self.saved_text = Some(format::to_text(&book));
                 settings::remember(path);
                 if let Some(rp) = recovery_path(Some(path)) {
                     let _ = std::fs::remove_file(rp);
