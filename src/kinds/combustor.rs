@@ -76,6 +76,10 @@ impl ProcessKind for Combustor {
             }
             Burn::FuelFlow(w) => Burn::Measured(w.clone()),
             Burn::Measured(_) => {
+                // The efficiency the measurement gave becomes the one given.
+                if let Some(eta) = figure(now, "efficiency").filter(|e| *e > 0.0 && *e <= 1.0) {
+                    c.efficiency = seed(Some(eta), 1.0, "", "0.99");
+                }
                 Burn::ExitTemperature(seed(figure(now, "exit_tt"), 1.0, "K", "1400 K"))
             }
         };
