@@ -78,11 +78,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             "--report: name at least one value (stationwise addresses FILE lists them)",
         ));
     }
-    for r in &report {
-        engine
-            .value(r)
-            .map_err(|e| Failure::bad(format!("--report: {e}")))?;
-    }
+    // The report paths are checked by `sweep::stream` before any row.
     let qs: Vec<Quantity> = report
         .iter()
         .map(|r| address::quantity(&engine, r).unwrap_or(Quantity::Ratio))

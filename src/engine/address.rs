@@ -81,36 +81,42 @@ impl Engine {
         }
     }
 
+    /// Whether a place offers a derived key, without building the list
+    /// (`value` runs per sweep point and report column).
+    fn has_derived(&self, scope: Scope, name: &str, key: &str) -> bool {
+        match scope {
+            Scope::Process => self.graph.process_index.get(name).is_some_and(|&i| {
+                crate::kinds::of(&self.book.processes[i].kind)
+                    .figure_keys()
+                    .contains(&key)
+            }),
+            s => derived_keys(s).iter().any(|(k, ..)| *k == key),
+        }
+    }
+
     /// The place of a path exists (or a NoPlace error listing those there are).
     fn place_exists(&self, path: &str, p: &Path) -> Result<(), AddressError> {
-        let (index, what, names): (_, _, Vec<String>) = match p.scope {
-            Scope::Station => (
-                &self.graph.station_index,
-                "station",
-                self.book.stations.iter().map(|s| s.name.clone()).collect(),
-            ),
-            Scope::Process => (
-                &self.graph.process_index,
-                "process",
-                self.book.processes.iter().map(|s| s.name.clone()).collect(),
-            ),
-            Scope::Shaft => (
-                &self.graph.shaft_index,
-                "shaft",
-                self.book.shafts.iter().map(|s| s.name.clone()).collect(),
-            ),
+        let (index, what) = match p.scope {
+            Scope::Station => (&self.graph.station_index, "station"),
+            Scope::Process => (&self.graph.process_index, "process"),
+            Scope::Shaft => (&self.graph.shaft_index, "shaft"),
             _ => return Ok(()),
         };
         if index.contains_key(&p.name) {
-            Ok(())
-        } else {
-            Err(AddressError::NoPlace {
-                path: path.to_string(),
-                what,
-                name: p.name.clone(),
-                have: names,
-            })
+            return Ok(());
         }
+        // The names there are, in file order, only for the message.
+        let have = match p.scope {
+            Scope::Station => self.book.stations.iter().map(|s| s.name.clone()).collect(),
+            Scope::Process => self.book.processes.iter().map(|s| s.name.clone()).collect(),
+            _ => self.book.shafts.iter().map(|s| s.name.clone()).collect(),
+        };
+        Err(AddressError::NoPlace {
+            path: path.to_string(),
+            what,
+            name: p.name.clone(),
+            have,
+        })
     }
 
     fn place_words(&self, p: &Path) -> String {
@@ -157,19 +163,17 @@ impl Engine {
     pub fn value(&self, path: &str) -> Result<Option<f64>, AddressError> {
         let p = Path::parse(path)?;
         self.place_exists(path, &p)?;
-        let derived = self.place_derived(p.scope, &p.name);
-        let given = self
-            .place_givens(p.scope, &p.name)
-            .into_iter()
-            .find(|(k, ..)| *k == p.key)
-            .map(|(_, _, si)| si);
-        if derived.contains(&p.key.as_str()) {
+        if self.has_derived(p.scope, &p.name, &p.key) {
             // A key both given and reported reads the report; where the
             // process could not be computed there is no value (a goal must
             // not meet its target on a given the process did not reach).
             return Ok(self.derived(&p));
         }
-        given.map(Some).ok_or_else(|| self.no_key(path, &p, false))
+        self.place_givens(p.scope, &p.name)
+            .into_iter()
+            .find(|(k, ..)| *k == p.key)
+            .map(|(_, _, si)| Some(si))
+            .ok_or_else(|| self.no_key(path, &p, false))
     }
 
     /// A derived value of a path whose place and key exist.
