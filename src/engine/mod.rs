@@ -109,6 +109,8 @@ struct Graph {
     /// The first entry in evaluation order (the inlet of corrections).
     first_entry: Option<usize>,
     to_index: Vec<usize>,
+    /// Output stations of each process: `to`, then a second stream.
+    outputs: Vec<Vec<usize>>,
 }
 
 /// A goal's outcome.
@@ -450,6 +452,7 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         .iter()
         .map(|o| o.first().copied().unwrap_or(0))
         .collect();
+    g.outputs = outputs;
     g.deps = (0..n)
         .map(|i| {
             let mut d: Vec<usize> = g.inputs[i].iter().map(|&s| g.producer[s]).collect();
@@ -782,9 +785,8 @@ impl Engine {
             reference: self.reference(),
         };
         let to = &self.book.stations[self.graph.to_index[i]];
-        let to2 = kind
-            .second_output()
-            .and_then(|s| self.graph.station_index.get(s))
+        let to2 = self.graph.outputs[i]
+            .get(1)
             .map(|&k| &self.book.stations[k]);
         let io = crate::kinds::Io {
             name: &p.name,

@@ -33,15 +33,11 @@ impl ProcessKind for Compressor {
         STAGE_FIGURES
     }
 
-    fn visit_names_mut(&mut self, f: &mut dyn FnMut(NameOf, &mut String)) {
-        if let Some(s) = &mut self.shaft {
+    names!(this, f => {
+        if let Compressor { shaft: Some(s), .. } = this {
             f(NameOf::Shaft, s);
         }
-    }
-
-    fn shaft(&self) -> Option<&str> {
-        self.shaft.as_deref()
-    }
+    });
 
     fn reads(&self) -> Reads {
         let m = self.mode == Compression::Measured;

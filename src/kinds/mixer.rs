@@ -24,13 +24,10 @@ impl ProcessKind for Mixer {
         &["p_ratio_streams", "bypass_ratio", "mach_out", "exit_tt"]
     }
 
-    fn visit_names_mut(&mut self, f: &mut dyn FnMut(NameOf, &mut String)) {
-        f(NameOf::Input, &mut self.secondary);
-    }
-
-    fn second_input(&self) -> Option<&str> {
-        Some(&self.secondary)
-    }
+    names!(this, f => {
+        let Mixer { secondary } = this;
+        f(NameOf::Input, secondary);
+    });
 
     fn run(&self, ctx: &Ctx, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
         let a = io.input()?;

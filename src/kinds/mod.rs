@@ -97,7 +97,11 @@ pub trait ProcessKind {
     /// [`crate::book::paths::FIGURE_KEYS`]); some appear only in some
     /// states (an unchoked nozzle has no throat).
     fn figure_keys(&self) -> &'static [&'static str];
-    /// Names of other items the process refers to besides `from` and `to`.
+    /// Names of other items the process refers to besides `from` and
+    /// `to` (a second stream in or out, its shaft), written once with
+    /// `names!`; the getters below and renames all read this one walk.
+    fn visit_names<'a>(&'a self, _f: &mut dyn FnMut(NameOf, &'a str)) {}
+    /// The same walk with exclusive access (renames).
     fn visit_names_mut(&mut self, _f: &mut dyn FnMut(NameOf, &mut String)) {}
     /// Flow enters the workbook here (no upstream station).
     fn is_entry(&self) -> bool {
@@ -105,15 +109,15 @@ pub trait ProcessKind {
     }
     /// A second input stream (a mixer's secondary).
     fn second_input(&self) -> Option<&str> {
-        None
+        name_of(self, NameOf::Input)
     }
     /// A second output stream (a split's bypass).
     fn second_output(&self) -> Option<&str> {
-        None
+        name_of(self, NameOf::Output)
     }
     /// The shaft the machine is on.
     fn shaft(&self) -> Option<&str> {
-        None
+        name_of(self, NameOf::Shaft)
     }
     /// Its work is set by its shaft's balance (it depends on the other
     /// machines on the shaft).
@@ -156,6 +160,34 @@ pub trait ProcessKind {
         tr: &mut crate::engine::explain::Tracer,
     ) -> Res<ProcessResult>;
 }
+
+/// The first name of a sort a kind refers to.
+fn name_of<K: ProcessKind + ?Sized>(k: &K, of: NameOf) -> Option<&str> {
+    let mut found = None;
+    k.visit_names(&mut |o, n| {
+        if o == of && found.is_none() {
+            found = Some(n);
+        }
+    });
+    found
+}
+
+/// A kind's walk over the names it refers to, written once for shared and
+/// exclusive access: `names!(this, f => { ... f(NameOf::Input, field) ... })`.
+macro_rules! names {
+    ($this:ident, $f:ident => $body:expr) => {
+        fn visit_names<'a>(&'a self, $f: &mut dyn FnMut(NameOf, &'a str)) {
+            let $this = self;
+            $body
+        }
+
+        fn visit_names_mut(&mut self, $f: &mut dyn FnMut(NameOf, &mut String)) {
+            let $this = self;
+            $body
+        }
+    };
+}
+pub(crate) use names;
 
 /// Write a kind's walk over its givens once and get both the shared and
 /// the exclusive walk: `givens!(this, f => match this { ... })`, the body
@@ -248,7 +280,7 @@ pub fn figure(now: Option<&ProcessResult>, key: &str) -> Option<f64> {
 
 /// Names and imports every kind file uses.
 mod prelude {
-    pub(crate) use super::{Io, NameOf, ProcessKind, Reads, figure, givens, seed};
+    pub(crate) use super::{Io, NameOf, ProcessKind, Reads, figure, givens, names, seed};
     pub(crate) use crate::book::{
         Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given,
         Heating, Kind, Mixer, Nozzle, Oblique, Shape, Split, Station, Turbine,

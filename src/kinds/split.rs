@@ -21,13 +21,10 @@ impl ProcessKind for Split {
         &["bypass_ratio", "w"]
     }
 
-    fn visit_names_mut(&mut self, f: &mut dyn FnMut(NameOf, &mut String)) {
-        f(NameOf::Output, &mut self.bypass);
-    }
-
-    fn second_output(&self) -> Option<&str> {
-        Some(&self.bypass)
-    }
+    names!(this, f => {
+        let Split { bypass, .. } = this;
+        f(NameOf::Output, bypass);
+    });
 
     fn run(&self, ctx: &Ctx, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
         split(ctx, self, io, tr)

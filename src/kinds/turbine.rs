@@ -38,15 +38,11 @@ impl ProcessKind for Turbine {
         STAGE_FIGURES
     }
 
-    fn visit_names_mut(&mut self, f: &mut dyn FnMut(NameOf, &mut String)) {
-        if let Some(s) = &mut self.shaft {
+    names!(this, f => {
+        if let Turbine { shaft: Some(s), .. } = this {
             f(NameOf::Shaft, s);
         }
-    }
-
-    fn shaft(&self) -> Option<&str> {
-        self.shaft.as_deref()
-    }
+    });
 
     fn takes_shaft_work(&self) -> bool {
         matches!(self.mode, Expansion::ShaftWork { .. })
