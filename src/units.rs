@@ -863,14 +863,21 @@ fn names_non_finite(text: &str) -> bool {
     lower.starts_with("inf") || lower.starts_with("nan")
 }
 
-/// Parse what a user typed at a prompt or on the command line: as
-/// [`parse`], but a dimensional quantity must say its unit (zero excepted,
-/// where the unit makes no difference but for temperatures).
-pub fn parse_stated(text: &str, quantity: Quantity, field: &str) -> Result<Parsed, UnitError> {
+/// Parse what a user typed at a prompt or on the command line, where
+/// values are shown in `system`'s display units: as [`parse`], but a bare
+/// number is refused where the display unit is not the one a bare number
+/// is read in (60 typed where pressures show in kPa or psia is not 60 Pa).
+/// Zero is zero in any unit, but for temperatures.
+pub fn parse_stated(
+    text: &str,
+    quantity: Quantity,
+    field: &str,
+    system: UnitSystem,
+) -> Result<Parsed, UnitError> {
     let bare = text.trim().parse::<f64>().ok();
-    let dimensional = !matches!(quantity, Quantity::Ratio | Quantity::Mach);
+    let shown_as_read = display_unit(quantity, system).symbol == quantity.default_unit().symbol;
     if let Some(v) = bare
-        && dimensional
+        && !shown_as_read
         && (v != 0.0 || quantity == Quantity::Temperature)
     {
         return Err(UnitError::NoUnit {
@@ -1137,29 +1144,43 @@ mod tests {
 
     #[test]
     fn a_stated_value_with_a_dimension_must_say_its_unit() {
-        // 60 typed under "psia" is not 60 Pa: refused, with the units.
-        let e = parse_stated("60", Quantity::Pressure, "pt").unwrap_err();
+        let (si, us) = (UnitSystem::Si, UnitSystem::Us);
+        // 60 typed where pressures show in kPa is not 60 Pa: refused, with the units.
+        let e = parse_stated("60", Quantity::Pressure, "pt", si).unwrap_err();
         assert!(matches!(e, UnitError::NoUnit { .. }), "{e}");
         assert!(
             e.to_string().contains("psia") && e.to_string().contains("read in Pa"),
             "{e}"
         );
-        assert!(parse_stated("300", Quantity::Temperature, "tt").is_err());
-        assert!(parse_stated("0", Quantity::Temperature, "tt").is_err());
-        // Zero of a pressure, length or speed is zero in any unit; ratios
-        // and Mach numbers have no unit to say.
+        // Where temperatures show in K, 300 is 300 K; where they show in
+        // degF it must say so, zero included.
         assert_eq!(
-            parse_stated("0", Quantity::Length, "altitude").unwrap().si,
+            parse_stated("300", Quantity::Temperature, "tt", si)
+                .unwrap()
+                .si,
+            300.0
+        );
+        assert!(parse_stated("300", Quantity::Temperature, "tt", us).is_err());
+        assert!(parse_stated("0", Quantity::Temperature, "tt", us).is_err());
+        // Zero of a length is zero in any unit; ratios and Mach numbers
+        // have no unit to say.
+        assert_eq!(
+            parse_stated("0", Quantity::Length, "altitude", us)
+                .unwrap()
+                .si,
             0.0
         );
         assert_eq!(
-            parse_stated("0.98", Quantity::Ratio, "cv").unwrap().si,
+            parse_stated("0.98", Quantity::Ratio, "cv", us).unwrap().si,
             0.98
         );
-        assert_eq!(parse_stated("2.5", Quantity::Mach, "M").unwrap().si, 2.5);
-        // With the unit, as parse: 14.7 psia = 101352.9 Pa (1 psi = 6894.757 Pa, NIST SP 811).
+        assert_eq!(
+            parse_stated("2.5", Quantity::Mach, "M", si).unwrap().si,
+            2.5
+        );
+        // With the unit, as parse: 1 psi = 6894.757293168 Pa (NIST SP 811).
         assert_relative_eq!(
-            parse_stated("14.7 psia", Quantity::Pressure, "pt")
+            parse_stated("14.7 psia", Quantity::Pressure, "pt", us)
                 .unwrap()
                 .si,
             14.7 * 6894.757293168,

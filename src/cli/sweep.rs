@@ -49,10 +49,10 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let [from, to, steps] = parts.as_slice() else {
         return Err(Failure::bad("--vary: use PATH=FROM:TO:STEPS"));
     };
-    let from = units::parse_stated(from, q, "--vary FROM")
+    let from = units::parse_stated(from, q, "--vary FROM", a.units.into())
         .map_err(Failure::bad)?
         .si;
-    let to = units::parse_stated(to, q, "--vary TO")
+    let to = units::parse_stated(to, q, "--vary TO", a.units.into())
         .map_err(Failure::bad)?
         .si;
     let steps: usize = steps

@@ -10,7 +10,7 @@ impl App {
         };
         // A bare number under a shown unit is refused, not read in SI.
         if let Some((q, _)) = engine.book().given(path) {
-            crate::units::parse_stated(text, q, path).map_err(|e| e.to_string())?;
+            crate::units::parse_stated(text, q, path, self.system).map_err(|e| e.to_string())?;
         }
         let before = engine.book().clone();
         engine.set_given(path, text).map_err(|e| e.to_string())?;

@@ -89,10 +89,10 @@ impl App {
             .into_iter()
             .find(|(p, ..)| *p == vary)
             .ok_or(format!("no given at \"{vary}\""))?;
-        let from = units::parse_stated(&fields[1], q, "from")
+        let from = units::parse_stated(&fields[1], q, "from", self.system)
             .map_err(|e| e.to_string())?
             .si;
-        let to = units::parse_stated(&fields[2], q, "to")
+        let to = units::parse_stated(&fields[2], q, "to", self.system)
             .map_err(|e| e.to_string())?
             .si;
         let steps: usize = fields[3]
