@@ -1178,7 +1178,7 @@ mod tests {
             parse_stated("2.5", Quantity::Mach, "M", si).unwrap().si,
             2.5
         );
-        // With the unit, as parse: 1 psi = 6894.757293168 Pa (NIST SP 811).
+        // With the unit, as parse: 1 psi = 6894.757293168 Pa (NIST SP 811, from memory).
         assert_relative_eq!(
             parse_stated("14.7 psia", Quantity::Pressure, "pt", us)
                 .unwrap()

@@ -80,8 +80,9 @@ impl ProcessKind for Entry {
             Entry::Plenum { tt, pt, .. } => Entry::ChokedPlenum {
                 tt: tt.clone(),
                 pt: pt.clone(),
-                // The throat that passes today's flow at these totals.
-                throat_area: seed(choked_area(now), 1.0, "m2", "0.01 m2"),
+                // A plenum reports no sonic area, so the throat starts from
+                // a default; sizing it to today's flow is left to a goal.
+                throat_area: Given::raw("0.01 m2"),
             },
             Entry::ChokedPlenum { .. } => Entry::Freestream { w: w() },
         }))
@@ -90,12 +91,6 @@ impl ProcessKind for Entry {
     fn run(&self, ctx: &Ctx, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
         entry(ctx, self, io.to, tr)
     }
-}
-
-/// The sonic throat area that passes the computed flow, from the exit
-/// station's flow per area at Mach 1 (none when nothing is computed).
-fn choked_area(now: Option<&ProcessResult>) -> Option<f64> {
-    now.and_then(|r| r.figure("throat_area"))
 }
 
 /// What the kind chooser offers.
