@@ -108,11 +108,19 @@ pub fn newton_monotone_floor<E>(
         } else {
             hi = x;
         }
-        let mut next = x - r / d;
+        let newton = x - r / d;
+        let tol = xtol * x.abs() + floor;
+        // A Newton step within the tolerance is convergence, even where it
+        // rounds onto the bracket end just moved to x (at the last bit of
+        // precision the step can vanish): bisecting then would walk the
+        // whole bracket back for nothing.
+        if newton.is_finite() && r.abs() <= rtol && (newton - x).abs() <= tol {
+            return Ok(newton.clamp(lo.min(hi), hi.max(lo)));
+        }
+        let mut next = newton;
         if !(next.is_finite() && next > lo && next < hi) {
             next = 0.5 * (lo + hi);
         }
-        let tol = xtol * x.abs() + floor;
         let step = (next - x).abs();
         if r.abs() <= rtol && step <= tol {
             return Ok(next);
@@ -282,6 +290,33 @@ pub fn simpson<E>(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn newton_stops_when_the_step_vanishes_at_the_last_bit() {
+        // Newton's method is exact on a straight line (independent
+        // relation): one step reaches the root to rounding, the next step
+        // rounds to zero. It must stop there, not bisect the bracket back
+        // (which took about 30 more evaluations before).
+        let root = 1163.583_133_592_61;
+        let mut calls = 0;
+        let x = newton_monotone_floor::<()>(
+            |x| {
+                calls += 1;
+                Ok((1.0e3 * (x - root), 1.0e3))
+            },
+            200.0,
+            6000.0,
+            1195.6,
+            true,
+            1e-14,
+            0.0,
+            f64::INFINITY,
+            200,
+        )
+        .unwrap();
+        assert!((x - root).abs() <= 1e-12 * root, "{x}");
+        assert!(calls <= 3, "{calls} evaluations for a straight line");
+    }
 
     #[test]
     fn newton_finds_cube_root_and_reports_missing_root() {

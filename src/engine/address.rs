@@ -369,3 +369,194 @@ pub fn quantity(engine: &Engine, path: &str) -> Option<Quantity> {
         .ok()
         .or_else(|| paths::quantity_of_derived(path))
 }
+
+/// A given resolved once (its place in the workbook's walk and what a change
+/// of it makes dirty): setting it costs no path parsing or name lookup.
+/// Made by [`Engine::handle`]; valid until the workbook's structure changes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GivenHandle {
+    ordinal: usize,
+    touch: Touch,
+    path: String,
+}
+
+impl GivenHandle {
+    /// The path the handle was made from.
+    pub fn path(&self) -> &str {
+        &self.path
+    }
+}
+
+/// What a change of a given makes dirty.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) enum Touch {
+    /// The gas model: everything, with the model and ambient rebuilt.
+    Gas,
+    /// The reference conditions of corrected values: everything.
+    All,
+    /// The ambient block: processes that read it, ambient rebuilt.
+    Ambient,
+    /// One process.
+    Process(usize),
+    /// The processes on one shaft.
+    Shaft(usize),
+    /// Nothing computed reads it.
+    Nothing,
+}
+
+/// A value resolved once for repeated reading (a sweep's report columns).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Reader {
+    how: Read,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+enum Read {
+    Station(usize, String),
+    Process(usize, &'static str),
+    Other(Path),
+    Given(GivenHandle),
+}
+
+impl Engine {
+    /// Resolve a given's path once for [`Engine::set_by`].
+    pub fn handle(&self, path: &str) -> Result<GivenHandle, BookError> {
+        let unknown = || BookError::Unknown {
+            whose: "the change".into(),
+            what: "given",
+            name: path.to_string(),
+        };
+        let mut ordinal = None;
+        let mut n = 0;
+        self.book.visit_givens_ref(&mut |f| {
+            if ordinal.is_none() && f.is(path) {
+                ordinal = Some(n);
+            }
+            n += 1;
+        });
+        let ordinal = ordinal.ok_or_else(unknown)?;
+        let p = Path::parse(path).map_err(|_| unknown())?;
+        let touch = match p.scope {
+            Scope::Gas => Touch::Gas,
+            Scope::Ambient if p.key.starts_with("reference") => Touch::All,
+            Scope::Ambient => Touch::Ambient,
+            Scope::Station => self
+                .graph
+                .station_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&s| Touch::Process(self.graph.producer[s])),
+            Scope::Process => self
+                .graph
+                .process_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&i| Touch::Process(i)),
+            Scope::Shaft => self
+                .graph
+                .shaft_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&k| Touch::Shaft(k)),
+            Scope::Summary => Touch::Nothing,
+        };
+        Ok(GivenHandle {
+            ordinal,
+            touch,
+            path: path.to_string(),
+        })
+    }
+
+    /// Set a given through its handle and recompute what depends on it
+    /// (as [`Engine::set_si`]; a value out of the field's bounds is refused
+    /// and the old one kept).
+    pub fn set_by(&mut self, h: &GivenHandle, si: f64) -> Result<(), BookError> {
+        let mut found = None;
+        let mut n = 0;
+        self.book.visit_givens(&mut |f| {
+            if n == h.ordinal {
+                let r = f.check_si(si);
+                if r.is_ok() {
+                    f.given.set_si(si);
+                }
+                found = Some(r);
+            }
+            n += 1;
+        });
+        match found {
+            Some(r) => r?,
+            None => {
+                return Err(BookError::Unknown {
+                    whose: "the change".into(),
+                    what: "given",
+                    name: h.path.clone(),
+                });
+            }
+        }
+        self.touch_resolved(h.touch);
+        self.recompute();
+        Ok(())
+    }
+
+    /// The SI value in use of a given, through its handle.
+    pub fn given_by(&self, h: &GivenHandle) -> Option<f64> {
+        let mut out = None;
+        let mut n = 0;
+        self.book.visit_givens_ref(&mut |f| {
+            if n == h.ordinal {
+                out = Some(f.given.si());
+            }
+            n += 1;
+        });
+        out
+    }
+
+    /// Resolve a path once for [`Engine::read`] (refused as
+    /// [`Engine::value`] refuses it).
+    pub fn reader(&self, path: &str) -> Result<Reader, AddressError> {
+        self.value(path)?;
+        let p = Path::parse(path)?;
+        let how = if self.has_derived(p.scope, &p.name, &p.key) {
+            match p.scope {
+                Scope::Station => match self.graph.station_index.get(&p.name) {
+                    Some(&s) => Read::Station(s, p.key.clone()),
+                    None => Read::Other(p),
+                },
+                Scope::Process => {
+                    let i = self.graph.process_index.get(&p.name).copied();
+                    let key = i.and_then(|i| {
+                        crate::kinds::of(&self.book.processes[i].kind)
+                            .figure_keys()
+                            .iter()
+                            .find(|k| **k == p.key)
+                            .copied()
+                    });
+                    match (i, key) {
+                        (Some(i), Some(k)) => Read::Process(i, k),
+                        _ => Read::Other(p),
+                    }
+                }
+                _ => Read::Other(p),
+            }
+        } else {
+            match self.handle(path) {
+                Ok(h) => Read::Given(h),
+                Err(_) => Read::Other(p),
+            }
+        };
+        Ok(Reader { how })
+    }
+
+    /// Read a resolved value (None where not computed).
+    pub fn read(&self, r: &Reader) -> Option<f64> {
+        match &r.how {
+            Read::Station(s, key) => match self.station_status(*s) {
+                super::StationStatus::Ok(v) => self.station_key(v, key),
+                _ => None,
+            },
+            Read::Process(i, key) => match self.nodes.get(*i) {
+                Some(Some(super::NodeOut::Done(res))) => res.figure(key),
+                _ => None,
+            },
+            Read::Other(p) => self.derived(p),
+            Read::Given(h) => self.given_by(h),
+        }
+    }
+}

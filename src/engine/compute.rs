@@ -20,9 +20,9 @@ pub struct ProcessResult {
     /// The downstream station.
     pub out: StationValue,
     /// The second downstream station (bypass of a split).
-    pub out2: Option<StationValue>,
+    pub out2: Option<Box<StationValue>>,
     /// Component figures: key (see `book::paths::FIGURE_KEYS`) and SI value.
-    pub figures: Vec<(&'static str, f64)>,
+    pub figures: Figures,
     /// Shaft power, W: positive absorbed (compressor), negative delivered (turbine).
     pub power: f64,
     /// Gross thrust, N (nozzles).
@@ -46,7 +46,7 @@ impl ProcessResult {
         ProcessResult {
             out,
             out2: None,
-            figures: Vec::new(),
+            figures: Figures::new(),
             power: 0.0,
             thrust: 0.0,
             exit_ke: 0.0,
@@ -63,6 +63,103 @@ impl ProcessResult {
             .iter()
             .find(|(k, _)| *k == key)
             .map(|(_, v)| *v)
+    }
+}
+
+/// Most figures one process reports (a turbomachine's nine are the most).
+pub const MAX_FIGURES: usize = 12;
+
+/// A process's figures, held inline: a result is rebuilt on every
+/// recompute, and a heap list per process would cost an allocation each
+/// time. Reads as a slice of (key, SI value).
+#[derive(Clone, Copy)]
+pub struct Figures {
+    items: [(&'static str, f64); MAX_FIGURES],
+    len: u8,
+}
+
+impl Figures {
+    /// No figures.
+    pub const fn new() -> Figures {
+        Figures {
+            items: [("", 0.0); MAX_FIGURES],
+            len: 0,
+        }
+    }
+    /// Figures from a list (beyond [`MAX_FIGURES`] are dropped; the kinds
+    /// report fewer, and a test checks every kind).
+    pub fn of(list: &[(&'static str, f64)]) -> Figures {
+        let mut f = Figures::new();
+        for &x in list {
+            f.push(x);
+        }
+        f
+    }
+    /// Add a figure at the end.
+    pub fn push(&mut self, x: (&'static str, f64)) {
+        if let Some(slot) = self.items.get_mut(self.len as usize) {
+            *slot = x;
+            self.len += 1;
+        } else {
+            debug_assert!(false, "more than {MAX_FIGURES} figures");
+        }
+    }
+    /// Insert a figure at a position (clamped to the end).
+    pub fn insert(&mut self, at: usize, x: (&'static str, f64)) {
+        let n = self.len as usize;
+        if n >= MAX_FIGURES {
+            debug_assert!(false, "more than {MAX_FIGURES} figures");
+            return;
+        }
+        let at = at.min(n);
+        self.items.copy_within(at..n, at + 1);
+        self.items[at] = x;
+        self.len += 1;
+    }
+    /// Keep only the figures for which `keep` holds.
+    pub fn retain(&mut self, mut keep: impl FnMut(&(&'static str, f64)) -> bool) {
+        let mut n = 0;
+        for i in 0..self.len as usize {
+            let x = self.items[i];
+            if keep(&x) {
+                self.items[n] = x;
+                n += 1;
+            }
+        }
+        self.len = n as u8;
+    }
+}
+
+impl Default for Figures {
+    fn default() -> Self {
+        Figures::new()
+    }
+}
+
+impl std::ops::Deref for Figures {
+    type Target = [(&'static str, f64)];
+    fn deref(&self) -> &Self::Target {
+        &self.items[..self.len as usize]
+    }
+}
+
+impl PartialEq for Figures {
+    fn eq(&self, other: &Self) -> bool {
+        **self == **other
+    }
+}
+
+impl std::fmt::Debug for Figures {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_list().entries(self.iter()).finish()
+    }
+}
+
+impl<'a> IntoIterator for &'a Figures {
+    type Item = &'a (&'static str, f64);
+    type IntoIter = std::slice::Iter<'a, (&'static str, f64)>;
+    fn into_iter(self) -> Self::IntoIter {
+        self.iter()
     }
 }
 
@@ -320,13 +417,8 @@ pub fn run(ctx: &Ctx, p: &Process, io: &Io, tr: &mut Tracer) -> Res<ProcessResul
     kind.run(ctx, io, tr)
 }
 
-pub(crate) fn stage_figures(
-    ctx: &Ctx,
-    st: &Stage,
-    w: f64,
-    i: &StationValue,
-) -> Vec<(&'static str, f64)> {
-    let mut v = vec![
+pub(crate) fn stage_figures(ctx: &Ctx, st: &Stage, w: f64, i: &StationValue) -> Figures {
+    let mut v = Figures::of(&[
         ("pressure_ratio", st.pressure_ratio),
         ("eta_isentropic", st.eta_isentropic),
         ("eta_polytropic", st.eta_polytropic),
@@ -338,7 +430,7 @@ pub(crate) fn stage_figures(
             "wc_in",
             crate::atmosphere::corrected_flow_to(i.w, i.tt, i.pt, ctx.reference),
         ),
-    ];
+    ]);
     if let Some(n) = ctx.shaft_speed {
         v.push(("nc", n / (i.tt / ctx.reference.0).sqrt()));
     }

@@ -28,6 +28,7 @@ use crate::book::paths::Scope;
 use crate::book::{BookError, Condition, Flight, GasSettings, Path, Station, Workbook};
 use crate::flow::{FlowState, isentropic, solve};
 use crate::gas::{Composition, GasModel, PerfectGas, T_REFERENCE, Thermo};
+use address::Touch;
 use compute::{Ctx, ProcessResult};
 use explain::{Step, Tracer};
 use std::collections::HashMap;
@@ -195,6 +196,8 @@ pub struct Engine {
     ambient: Result<AmbientState, String>,
     nodes: Vec<Option<NodeOut>>,
     dirty: Vec<bool>,
+    /// Scratch marks of the processes a recompute changed.
+    changed: Vec<bool>,
     goals: Vec<GoalOutcome>,
     summary: Summary,
     evaluations: u64,
@@ -512,6 +515,7 @@ impl Engine {
             ambient,
             nodes: vec![None; n],
             dirty: vec![true; n],
+            changed: Vec::new(),
             goals: Vec::new(),
             summary: Summary::default(),
             evaluations: 0,
@@ -613,16 +617,40 @@ impl Engine {
         let Ok(p) = Path::parse(path) else {
             return;
         };
-        match p.scope {
-            Scope::Gas => {
+        let t = match p.scope {
+            Scope::Gas => Touch::Gas,
+            Scope::Ambient if p.key.starts_with("reference") => Touch::All,
+            Scope::Ambient => Touch::Ambient,
+            Scope::Station => self
+                .graph
+                .station_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&s| Touch::Process(self.graph.producer[s])),
+            Scope::Process => self
+                .graph
+                .process_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&i| Touch::Process(i)),
+            Scope::Shaft => self
+                .graph
+                .shaft_index
+                .get(&p.name)
+                .map_or(Touch::Nothing, |&k| Touch::Shaft(k)),
+            Scope::Summary => Touch::Nothing,
+        };
+        self.touch_resolved(t);
+    }
+
+    /// Mark what a resolved change reaches as dirty.
+    fn touch_resolved(&mut self, t: Touch) {
+        match t {
+            Touch::Gas => {
                 self.model = gas_model(&self.book.gas);
                 self.refresh_ambient();
                 self.dirty.iter_mut().for_each(|d| *d = true);
             }
-            Scope::Ambient if p.key.starts_with("reference") => {
-                self.dirty.iter_mut().for_each(|d| *d = true);
-            }
-            Scope::Ambient => {
+            Touch::All => self.dirty.iter_mut().for_each(|d| *d = true),
+            Touch::Ambient => {
                 self.refresh_ambient();
                 for (i, d) in self.dirty.iter_mut().enumerate() {
                     if self.graph.uses_ambient[i] {
@@ -630,26 +658,19 @@ impl Engine {
                     }
                 }
             }
-            Scope::Station => {
-                if let Some(&s) = self.graph.station_index.get(&p.name) {
-                    self.dirty[self.graph.producer[s]] = true;
+            Touch::Process(i) => {
+                if let Some(d) = self.dirty.get_mut(i) {
+                    *d = true;
                 }
             }
-            Scope::Process => {
-                if let Some(&i) = self.graph.process_index.get(&p.name) {
-                    self.dirty[i] = true;
-                }
-            }
-            Scope::Shaft => {
-                if let Some(&k) = self.graph.shaft_index.get(&p.name) {
-                    for (i, d) in self.dirty.iter_mut().enumerate() {
-                        if self.graph.shaft_of[i] == Some(k) {
-                            *d = true;
-                        }
+            Touch::Shaft(k) => {
+                for (i, d) in self.dirty.iter_mut().enumerate() {
+                    if self.graph.shaft_of[i] == Some(k) {
+                        *d = true;
                     }
                 }
             }
-            Scope::Summary => {}
+            Touch::Nothing => {}
         }
     }
 
@@ -668,8 +689,11 @@ impl Engine {
     }
 
     fn run_nodes(&mut self) {
-        let n = self.nodes.len();
-        let mut changed = vec![false; n];
+        // The changed marks are a buffer kept between runs (no allocation
+        // per recompute); a result replaces the old one in its box.
+        let mut changed = std::mem::take(&mut self.changed);
+        changed.clear();
+        changed.resize(self.nodes.len(), false);
         for oi in 0..self.graph.order.len() {
             let i = self.graph.order[oi];
             let need = self.dirty[i]
@@ -678,24 +702,41 @@ impl Engine {
             if !need {
                 continue;
             }
-            let out = self.evaluate(i, &mut Tracer::off());
+            let out = self.evaluate_raw(i, &mut Tracer::off());
             self.evaluations += 1;
             self.dirty[i] = false;
-            if self.nodes[i].as_ref() != Some(&out) {
-                changed[i] = true;
-                self.nodes[i] = Some(out);
+            match (&mut self.nodes[i], out) {
+                (Some(NodeOut::Done(old)), Ok(r)) => {
+                    if **old != r {
+                        **old = r;
+                        changed[i] = true;
+                    }
+                }
+                (slot, out) => {
+                    let out = match out {
+                        Ok(r) => NodeOut::Done(Box::new(r)),
+                        Err(o) => o,
+                    };
+                    if slot.as_ref() != Some(&out) {
+                        changed[i] = true;
+                        *slot = Some(out);
+                    }
+                }
             }
         }
+        self.changed = changed;
         self.summary = self.build_summary();
     }
 
-    /// Inputs of node `i`, or the name of the process that blocks it.
-    fn node_inputs(&self, i: usize) -> Result<Vec<&StationValue>, String> {
-        let mut v = Vec::with_capacity(2);
-        for &s in &self.graph.inputs[i] {
-            v.push(self.station_value(s)?);
+    /// Inputs of node `i` (at most two), or the name of the process that
+    /// blocks it.
+    fn node_inputs(&self, i: usize) -> Result<([Option<&StationValue>; 2], usize), String> {
+        let mut v = [None, None];
+        let ins = &self.graph.inputs[i];
+        for (slot, &s) in v.iter_mut().zip(ins) {
+            *slot = Some(self.station_value(s)?);
         }
-        Ok(v)
+        Ok((v, ins.len().min(2)))
     }
 
     fn station_value(&self, s: usize) -> Result<&StationValue, String> {
@@ -706,7 +747,7 @@ impl Engine {
                     Ok(&r.out)
                 } else {
                     r.out2
-                        .as_ref()
+                        .as_deref()
                         .ok_or_else(|| self.book.processes[p].name.clone())
                 }
             }
@@ -752,24 +793,45 @@ impl Engine {
     }
 
     fn evaluate(&self, i: usize, tr: &mut Tracer) -> NodeOut {
+        match self.evaluate_raw(i, tr) {
+            Ok(r) => NodeOut::Done(Box::new(r)),
+            Err(o) => o,
+        }
+    }
+
+    /// Run process `i`: its result, or the outcome that stands instead.
+    fn evaluate_raw(&self, i: usize, tr: &mut Tracer) -> Result<ProcessResult, NodeOut> {
         let p = &self.book.processes[i];
         let model = match &self.model {
             Ok(m) => m,
-            Err(e) => return NodeOut::NoSettings(format!("gas settings: {e}")),
+            Err(e) => return Err(NodeOut::NoSettings(format!("gas settings: {e}"))),
         };
         let ambient = match &self.ambient {
             Ok(a) => a,
-            Err(e) => return NodeOut::NoSettings(format!("ambient: {e}")),
+            Err(e) => return Err(NodeOut::NoSettings(format!("ambient: {e}"))),
         };
-        let inputs = match self.node_inputs(i) {
+        let (ins, n_in) = match self.node_inputs(i) {
             Ok(v) => v,
-            Err(by) => return NodeOut::Blocked(by),
+            Err(by) => return Err(NodeOut::Blocked(by)),
+        };
+        let pair;
+        let one;
+        let inputs: &[&StationValue] = match ins {
+            [Some(a), Some(b)] if n_in == 2 => {
+                pair = [a, b];
+                &pair
+            }
+            [Some(a), _] => {
+                one = [a];
+                &one
+            }
+            _ => &[],
         };
         let kind = crate::kinds::of(&p.kind);
         let shaft_need = if kind.takes_shaft_work() {
             match self.shaft_need(i) {
                 Ok(v) => v,
-                Err(out) => return out,
+                Err(out) => return Err(out),
             }
         } else {
             None
@@ -791,14 +853,11 @@ impl Engine {
         let io = crate::kinds::Io {
             name: &p.name,
             from: p.from.as_deref().unwrap_or(""),
-            inputs: &inputs,
+            inputs,
             to,
             to2,
         };
-        match compute::run(&ctx, p, &io, tr) {
-            Ok(r) => NodeOut::Done(Box::new(r)),
-            Err(m) => NodeOut::Failed(m),
-        }
+        compute::run(&ctx, p, &io, tr).map_err(NodeOut::Failed)
     }
 
     fn build_summary(&self) -> Summary {
@@ -1032,6 +1091,25 @@ impl Engine {
             }
         }
         v
+    }
+
+    /// The first of [`Engine::problems`] as "place: message", built only
+    /// when there is one (a sweep asks at every point).
+    pub fn first_problem(&self) -> Option<String> {
+        let none = self.model.is_ok()
+            && self.ambient.is_ok()
+            && !self
+                .nodes
+                .iter()
+                .any(|n| matches!(n, Some(NodeOut::Failed(_))))
+            && self.goals.iter().all(|g| g.problem.is_none());
+        if none {
+            return None;
+        }
+        self.problems()
+            .into_iter()
+            .next()
+            .map(|p| format!("{}: {}", p.place, p.message))
     }
 
     /// Goal outcomes, in workbook order.

@@ -68,19 +68,21 @@ pub fn stream<E: From<BookError>>(
     batch: usize,
     mut sink: impl FnMut(Vec<(Row, Option<String>)>) -> Result<(), E>,
 ) -> Result<(), E> {
-    for r in report {
-        engine
-            .value(r)
-            .map_err(|e| BookError::Rule(format!("--report: {e}")))?;
-    }
-    if !engine.book().givens().iter().any(|(p, ..)| p == vary) {
-        return Err(BookError::Unknown {
-            whose: "the sweep".into(),
-            what: "given",
-            name: vary.to_string(),
-        }
-        .into());
-    }
+    // Paths are resolved once: a point costs an incremental recompute and
+    // the reads, no path parsing or lookup by name.
+    let readers = report
+        .iter()
+        .map(|r| {
+            engine
+                .reader(r)
+                .map_err(|e| BookError::Rule(format!("--report: {e}")))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    let handle = engine.handle(vary).map_err(|_| BookError::Unknown {
+        whose: "the sweep".into(),
+        what: "given",
+        name: vary.to_string(),
+    })?;
     let threads = rayon::current_num_threads().max(1);
     let batch = batch.max(1);
     let mut start = 0;
@@ -95,14 +97,11 @@ pub fn stream<E: From<BookError>>(
                 part.iter()
                     .map(|&i| {
                         let x = value_at(i);
-                        if let Err(err) = e.set_si(vary, x) {
-                            return ((x, vec![None; report.len()]), Some(err.to_string()));
+                        if let Err(err) = e.set_by(&handle, x) {
+                            return ((x, vec![None; readers.len()]), Some(err.to_string()));
                         }
-                        let vals = report.iter().map(|r| e.value(r).ok().flatten()).collect();
-                        let problem = e
-                            .problems()
-                            .first()
-                            .map(|p| format!("{}: {}", p.place, p.message));
+                        let vals = readers.iter().map(|r| e.read(r)).collect();
+                        let problem = e.first_problem();
                         ((x, vals), problem)
                     })
                     .collect()

@@ -91,7 +91,9 @@ impl Polynomial {
 /// A thermally perfect ideal-gas mixture of fixed composition.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Mixture {
-    poly: Polynomial,
+    // Shared: a mixture is handed out for every process of every
+    // recompute, and a clone should not copy two coefficient tables.
+    poly: std::sync::Arc<Polynomial>,
     r: f64,
     h_ref: f64,
     label: std::borrow::Cow<'static, str>,
@@ -109,7 +111,7 @@ impl Mixture {
             Err(_) => 0.0,
         };
         Mixture {
-            poly,
+            poly: std::sync::Arc::new(poly),
             r,
             h_ref,
             label: label.into(),

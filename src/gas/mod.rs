@@ -323,24 +323,36 @@ impl GasModel {
 fn cached_mixture(c: &Composition) -> Mixture {
     use std::cell::RefCell;
     type Key = (u64, u64, u64);
+    const SLOTS: usize = 16;
+    /// A ring of recent mixtures: looked up by key, a miss overwrites the
+    /// oldest slot (no entries are moved).
+    struct Ring {
+        keys: [Option<Key>; SLOTS],
+        mixtures: Vec<Mixture>,
+        next: usize,
+    }
     thread_local! {
-        static CACHE: RefCell<Vec<(Key, Mixture)>> = const { RefCell::new(Vec::new()) };
+        static CACHE: RefCell<Ring> = const {
+            RefCell::new(Ring { keys: [None; SLOTS], mixtures: Vec::new(), next: 0 })
+        };
     }
     let key = (c.far.to_bits(), c.war.to_bits(), c.fuel.hc().to_bits());
     CACHE.with(|cell| {
-        let mut cache = cell.borrow_mut();
-        if let Some(pos) = cache.iter().position(|(k, _)| *k == key) {
-            let hit = cache[pos].1.clone();
-            // Keep recent entries at the front.
-            if pos > 0 {
-                let e = cache.remove(pos);
-                cache.insert(0, e);
-            }
-            return hit;
+        let mut ring = cell.borrow_mut();
+        if let Some(pos) = ring.keys.iter().position(|k| *k == Some(key))
+            && let Some(m) = ring.mixtures.get(pos)
+        {
+            return m.clone();
         }
         let m = c.mixture();
-        cache.insert(0, (key, m.clone()));
-        cache.truncate(16);
+        let slot = ring.next;
+        ring.next = (slot + 1) % SLOTS;
+        if slot < ring.mixtures.len() {
+            ring.mixtures[slot] = m.clone();
+        } else {
+            ring.mixtures.push(m.clone());
+        }
+        ring.keys[slot] = Some(key);
         m
     })
 }

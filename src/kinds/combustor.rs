@@ -251,13 +251,13 @@ fn combustor(
     let mut r = ProcessResult::new(out);
     r.fuel = wf;
     r.heat_release = wf * lhv;
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("fuel_flow", wf),
         ("far_added", burn.far_added),
         ("exit_tt", burn.tt_out),
         ("efficiency", eta),
         ("tt_ratio", burn.tt_out / i.tt),
         ("loss", loss),
-    ];
+    ]);
     Ok(r)
 }

@@ -113,7 +113,7 @@ fn duct(
     tr: &mut Tracer,
 ) -> Res<ProcessResult> {
     let g = gas(ctx, &i.comp)?;
-    let mut figures = Vec::new();
+    let mut figures = Figures::new();
     let (pt, intrinsic) = match d {
         Duct::Recovery { recovery } => {
             let r = recovery.si();

@@ -152,7 +152,7 @@ fn entry(ctx: &Ctx, e: &Entry, to: &Station, tr: &mut Tracer) -> Res<ProcessResu
             r.ram_drag = w * a.flow.v;
             r.entry_ke = 0.5 * w * a.flow.v * a.flow.v;
             r.air_in = w / air.mass_per_kg_air();
-            r.figures = vec![("w", w), ("mach_out", a.flow.mach)];
+            r.figures = Figures::of(&[("w", w), ("mach_out", a.flow.mach)]);
             r
         }
         Entry::Plenum { tt, pt, w } => {
@@ -164,7 +164,7 @@ fn entry(ctx: &Ctx, e: &Entry, to: &Station, tr: &mut Tracer) -> Res<ProcessResu
             let out = finish(&g, to, w, tt, pt, air, None, "entry", tr)?;
             let mut r = ProcessResult::new(out);
             r.air_in = w / air.mass_per_kg_air();
-            r.figures = vec![("w", w)];
+            r.figures = Figures::of(&[("w", w)]);
             r
         }
         Entry::ChokedPlenum {
@@ -194,7 +194,7 @@ fn entry(ctx: &Ctx, e: &Entry, to: &Station, tr: &mut Tracer) -> Res<ProcessResu
             let out = finish(&g, to, w, tt, pt, air, None, "entry", tr)?;
             let mut r = ProcessResult::new(out);
             r.air_in = w / air.mass_per_kg_air();
-            r.figures = vec![("w", w), ("throat_area", at)];
+            r.figures = Figures::of(&[("w", w), ("throat_area", at)]);
             r
         }
     };

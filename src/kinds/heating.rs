@@ -122,13 +122,13 @@ fn heating(
         tr,
     )?;
     let mut r = ProcessResult::new(st);
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("heat", q),
         ("max_heat", q_max),
         ("exit_tt", out.tt),
         ("mach_in", s.mach),
         ("mach_out", out.mach),
         ("recovery", out.pt / i.pt),
-    ];
+    ]);
     Ok(r)
 }

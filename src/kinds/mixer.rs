@@ -114,11 +114,11 @@ fn mixer(
     );
     let st = finish(&g, to, w, tt, out.pt, comp, Some(out), "mixer", tr)?;
     let mut r = ProcessResult::new(st);
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("p_ratio_streams", sb.p / sa.p),
         ("bypass_ratio", b.w / a.w),
         ("mach_out", out.mach),
         ("exit_tt", tt),
-    ];
+    ]);
     Ok(r)
 }

@@ -287,8 +287,8 @@ mod prelude {
     };
     pub(crate) use crate::engine::StationValue;
     pub(crate) use crate::engine::compute::{
-        Ctx, ProcessResult, Res, efficiency, fe, finish, gas, measured, need_statics, positive,
-        ratio, stage_figures,
+        Ctx, Figures, ProcessResult, Res, efficiency, fe, finish, gas, measured, need_statics,
+        positive, ratio, stage_figures,
     };
     pub(crate) use crate::engine::explain::{Tracer, step};
     pub(crate) use crate::flow::combustion::{self, Burner};

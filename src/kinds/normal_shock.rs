@@ -82,11 +82,11 @@ fn normal_shock(
         tr,
     )?;
     let mut r = ProcessResult::new(out);
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("mach_in", up.mach),
         ("mach_out", dn.mach),
         ("recovery", dn.pt / up.pt),
         ("p_ratio", dn.p / up.p),
-    ];
+    ]);
     Ok(r)
 }

@@ -232,7 +232,7 @@ fn nozzle(
     r.thrust = thrust;
     // Kinetic energy at the effective jet velocity F/W, so pressure thrust counts.
     r.exit_ke = 0.5 * thrust * thrust / i.w;
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("thrust", thrust),
         ("area", area_eff / cd),
         ("throat_area", throat_eff / cd),
@@ -245,7 +245,7 @@ fn nozzle(
         ("exit_p_ratio", exit.p / p_amb),
         ("npr", npr),
         ("choked", if choked { 1.0 } else { 0.0 }),
-    ];
+    ]);
     // An unchoked nozzle has no sonic throat: the figure is absent, not NaN.
     if !choked {
         r.figures.retain(|(k, _)| *k != "throat_area");

@@ -90,13 +90,13 @@ fn oblique(ctx: &Ctx, o: &Oblique, io: &Io, tr: &mut Tracer) -> Res<ProcessResul
         tr,
     )?;
     let mut r = ProcessResult::new(out);
-    r.figures = vec![
+    r.figures = Figures::of(&[
         ("beta", ob.beta),
         ("max_deflection", ob.max_deflection),
         ("mach_in", up.mach),
         ("mach_out", ob.down.mach),
         ("recovery", ob.down.pt / up.pt),
         ("p_ratio", ob.down.p / up.p),
-    ];
+    ]);
     Ok(r)
 }

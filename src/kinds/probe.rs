@@ -68,7 +68,7 @@ impl ProcessKind for Probe {
         let g = gas(ctx, &i.comp)?;
         let out = finish(&g, io.to, i.w, i.tt, pt, i.comp, None, "probe", tr)?;
         let mut r = ProcessResult::new(out);
-        r.figures = vec![("recovery", keep)];
+        r.figures = Figures::of(&[("recovery", keep)]);
         Ok(r)
     }
 }

@@ -74,7 +74,7 @@ fn split(ctx: &Ctx, s: &Split, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
         &mut Tracer::off(),
     )?;
     let mut r = ProcessResult::new(core);
-    r.out2 = Some(byp);
-    r.figures = vec![("bypass_ratio", bpr), ("w", i.w)];
+    r.out2 = Some(Box::new(byp));
+    r.figures = Figures::of(&[("bypass_ratio", bpr), ("w", i.w)]);
     Ok(r)
 }
