@@ -297,7 +297,7 @@ mod tests {
         // relation): one step reaches the root to rounding, the next step
         // rounds to zero. It must stop there, not bisect the bracket back
         // (which took about 30 more evaluations before).
-        let root = 1163.583_133_592_61;
+        let root = 1_163.583_133_592_61;
         let mut calls = 0;
         let x = newton_monotone_floor::<()>(
             |x| {

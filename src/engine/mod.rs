@@ -829,10 +829,7 @@ impl Engine {
         };
         let kind = crate::kinds::of(&p.kind);
         let shaft_need = if kind.takes_shaft_work() {
-            match self.shaft_need(i) {
-                Ok(v) => v,
-                Err(out) => return Err(out),
-            }
+            self.shaft_need(i)?
         } else {
             None
         };
