@@ -95,6 +95,8 @@ impl Workbook {
         if let Some(rows) = &mut self.results {
             rows.iter_mut().for_each(|r| fix(&mut r.row));
         }
+        self.comments.rename("stations", old, new);
+        self.comments.rename("results", old, new);
         Ok(())
     }
 
@@ -113,6 +115,7 @@ impl Workbook {
         for s in self.stored_paths_mut() {
             rename_in_path(s, Scope::Process, old, new);
         }
+        self.comments.rename("processes", old, new);
         Ok(())
     }
 
@@ -128,6 +131,7 @@ impl Workbook {
         let taken = new != old && self.shafts.iter().any(|s| s.name == new);
         Self::check_new_name("shaft", new, taken)?;
         self.shafts[i].name = new.to_string();
+        self.comments.rename("shafts", old, new);
         for p in &mut self.processes {
             crate::kinds::of_mut(&mut p.kind).visit_names_mut(&mut |of, s| {
                 if of == NameOf::Shaft && s == old {

@@ -182,6 +182,10 @@ pub struct Workbook {
     /// Stored derived results (written when `keep_results` is set).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub results: Option<Vec<StoredRow>>,
+    /// The `//` and `/* */` comments of the file it was read from, put
+    /// back in place on every save (not a field of the file itself).
+    #[serde(skip)]
+    pub comments: crate::format::comments::Comments,
 }
 
 /// Stored results of one station or of the summary.

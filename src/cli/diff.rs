@@ -1,28 +1,44 @@
 //! `stationwise diff`: givens that changed, derived values that moved.
 
-use super::common::{self, quantity, with_unit};
+use super::common::{self, quantity, shown, unit_label, with_unit};
 use super::{Failure, OutFormat, Units};
 use crate::book::paths::{FIGURE_KEYS, STATION_KEYS, SUMMARY_KEYS};
 use crate::engine::Engine;
 use crate::units::UnitSystem;
 use std::path::PathBuf;
 
-/// Compare two workbooks: givens (by path) and derived values beyond a tolerance.
+/// Compare two workbooks for a reviewer.
+///
+/// Text: a headline of counts, the summary figures that moved, the givens
+/// that changed, structural changes, then one line on the other derived
+/// values that moved (`--all` lists each). Comments are ignored unless
+/// `--comments`. CSV: one row per difference (section, path, old, new,
+/// unit, change in %), values in display units. JSON: the same in SI.
+/// Exit 0 when nothing differs, 2 when something does.
 #[derive(Debug, clap::Args)]
 pub(super) struct Args {
     /// The old workbook.
     a: PathBuf,
     /// The new workbook.
     b: PathBuf,
-    /// Relative tolerance for derived values.
-    #[arg(long, default_value_t = 1e-6)]
-    tolerance: f64,
-    /// Output format (text or json).
+    /// Relative change below which a derived value counts as unmoved.
+    #[arg(long, alias = "tolerance", default_value_t = 1e-6)]
+    threshold: f64,
+    /// List every derived value that moved, not only the summary figures.
+    #[arg(long)]
+    all: bool,
+    /// Also report comments added or removed.
+    #[arg(long)]
+    comments: bool,
+    /// Output format.
     #[arg(long, value_enum, default_value_t = OutFormat::Text)]
     format: OutFormat,
-    /// Display units for text.
+    /// Display units for text and CSV (JSON is SI).
     #[arg(long, value_enum, default_value_t = Units::Si)]
     units: Units,
+    /// Significant figures of numbers in text and CSV.
+    #[arg(long, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=17))]
+    precision: u8,
 }
 
 /// One derived value that moved: path, old, new (SI).
@@ -66,6 +82,12 @@ pub fn moved(a: &Engine, b: &Engine, tol: f64) -> Vec<Moved> {
 }
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
+    if !(a.threshold.is_finite() && a.threshold >= 0.0) {
+        return Err(Failure::bad(format!(
+            "--threshold {}: must be a relative change of 0 or more",
+            a.threshold
+        )));
+    }
     let (ba, ea) = common::open(&a.a)?;
     let (bb, eb) = common::open(&a.b)?;
     let ga = ba.givens();
@@ -86,70 +108,232 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         }
     }
     let mut structure = Vec::new();
-    for s in &ba.stations {
-        if bb.station(&s.name).is_none() {
-            structure.push(format!("station {} removed", s.name));
+    for (what, old, new) in [
+        (
+            "station",
+            ba.stations.iter().map(|s| &s.name).collect::<Vec<_>>(),
+            bb.stations.iter().map(|s| &s.name).collect::<Vec<_>>(),
+        ),
+        (
+            "process",
+            ba.processes.iter().map(|s| &s.name).collect(),
+            bb.processes.iter().map(|s| &s.name).collect(),
+        ),
+        (
+            "shaft",
+            ba.shafts.iter().map(|s| &s.name).collect(),
+            bb.shafts.iter().map(|s| &s.name).collect(),
+        ),
+    ] {
+        for n in &old {
+            if !new.contains(n) {
+                structure.push(format!("{what} {n} removed"));
+            }
+        }
+        for n in &new {
+            if !old.contains(n) {
+                structure.push(format!("{what} {n} added"));
+            }
         }
     }
-    for s in &bb.stations {
-        if ba.station(&s.name).is_none() {
-            structure.push(format!("station {} added", s.name));
+    let mut comments: Vec<(Option<String>, Option<String>)> = Vec::new();
+    if a.comments {
+        let (ca, cb) = (ba.comments.texts(), bb.comments.texts());
+        for c in &ca {
+            if !cb.contains(c) {
+                comments.push((Some(c.clone()), None));
+            }
+        }
+        for c in &cb {
+            if !ca.contains(c) {
+                comments.push((None, Some(c.clone())));
+            }
         }
     }
-    let moved = moved(&ea, &eb, a.tolerance);
+    let moved = moved(&ea, &eb, a.threshold);
+    let (summary, other): (Vec<&Moved>, Vec<&Moved>) =
+        moved.iter().partition(|(p, ..)| p.starts_with("summary."));
     let system: UnitSystem = a.units.into();
-    if a.format == OutFormat::Json {
-        let v = serde_json::json!({
-            "givens": givens.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
-            "structure": structure,
-            "derived": moved.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
-        });
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).map_err(|e| Failure::bad(e.to_string()))?
-        );
+    let differs =
+        !givens.is_empty() || !structure.is_empty() || !moved.is_empty() || !comments.is_empty();
+    let rel = |x: &Option<f64>, y: &Option<f64>| match (x, y) {
+        (Some(x), Some(y)) if *x != 0.0 => Some((y - x) / x.abs() * 100.0),
+        _ => None,
+    };
+    let listed: Vec<&Moved> = if a.all {
+        moved.iter().collect()
     } else {
-        let show = |t: &Option<String>| t.clone().unwrap_or_else(|| "(none)".into());
-        if givens.is_empty() && structure.is_empty() && moved.is_empty() {
-            println!("no differences");
-        }
-        if !givens.is_empty() {
-            println!("givens");
-            for (p, x, y) in &givens {
-                println!("  {p}: {} -> {}", show(x), show(y));
-            }
-        }
-        if !structure.is_empty() {
-            println!("structure");
-            for s in &structure {
-                println!("  {s}");
-            }
-        }
-        if !moved.is_empty() {
+        summary.clone()
+    };
+    match a.format {
+        OutFormat::Json => {
+            let item = |(p, x, y): &Moved| serde_json::json!({"path": p, "old": x, "new": y, "change_percent": rel(x, y)});
+            let v = serde_json::json!({
+                "summary": {
+                    "givens_changed": givens.len(),
+                    "structural_changes": structure.len(),
+                    "derived_moved": moved.len(),
+                    "threshold": a.threshold,
+                    "comments_changed": comments.len(),
+                },
+                "summary_figures": summary.iter().map(|m| item(m)).collect::<Vec<_>>(),
+                "givens": givens.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
+                "structure": structure,
+                "derived": other.iter().filter(|_| a.all).map(|m| item(m)).collect::<Vec<_>>(),
+                "comments": comments.iter().map(|(x, y)| serde_json::json!({"old": x, "new": y})).collect::<Vec<_>>(),
+            });
             println!(
-                "derived values that moved (beyond {} relative)",
-                a.tolerance
+                "{}",
+                serde_json::to_string_pretty(&v).map_err(|e| Failure::bad(e.to_string()))?
             );
-            for (p, x, y) in &moved {
+        }
+        OutFormat::Csv => {
+            let mut w = csv::Writer::from_writer(std::io::stdout().lock());
+            let io = |e: csv::Error| Failure::bad(format!("cannot write the output: {e}"));
+            w.write_record(["section", "path", "old", "new", "unit", "change [%]"])
+                .map_err(io)?;
+            let num = |v: Option<f64>, q| {
+                v.map_or(String::new(), |v| {
+                    crate::report::sig(shown(v, q, system), a.precision as usize)
+                })
+            };
+            for (p, x, y) in &givens {
+                let (x, y) = (x.clone().unwrap_or_default(), y.clone().unwrap_or_default());
+                w.write_record(["given", p, &x, &y, "", ""]).map_err(io)?;
+            }
+            for s in &structure {
+                w.write_record(["structure", s, "", "", "", ""])
+                    .map_err(io)?;
+            }
+            for m in &listed {
+                let (p, x, y) = m;
+                let q = quantity(p);
+                let section = if p.starts_with("summary.") {
+                    "summary"
+                } else {
+                    "derived"
+                };
+                let r = rel(x, y).map_or(String::new(), |r| crate::report::sig(r, 4));
+                w.write_record([
+                    section,
+                    p,
+                    &num(*x, q),
+                    &num(*y, q),
+                    &unit_label(q, system),
+                    &r,
+                ])
+                .map_err(io)?;
+            }
+            for (x, y) in &comments {
+                let (x, y) = (x.clone().unwrap_or_default(), y.clone().unwrap_or_default());
+                w.write_record(["comment", "", &x, &y, "", ""])
+                    .map_err(io)?;
+            }
+            w.flush()
+                .map_err(|e| Failure::bad(format!("cannot write the output: {e}")))?;
+        }
+        OutFormat::Text => {
+            let show = |t: &Option<String>| t.clone().unwrap_or_else(|| "(none)".into());
+            let plural = |n: usize, one: &str, many: &str| {
+                format!("{n} {}", if n == 1 { one } else { many })
+            };
+            if !differs {
+                println!(
+                    "no differences (derived values within {:e} relative)",
+                    a.threshold
+                );
+                return Ok(0);
+            }
+            let mut head = vec![
+                plural(givens.len(), "given changed", "givens changed"),
+                plural(moved.len(), "derived value moved", "derived values moved")
+                    + &format!(" (beyond {:e} relative)", a.threshold),
+            ];
+            if !structure.is_empty() {
+                head.push(plural(
+                    structure.len(),
+                    "structural change",
+                    "structural changes",
+                ));
+            }
+            if a.comments {
+                head.push(plural(
+                    comments.len(),
+                    "comment changed",
+                    "comments changed",
+                ));
+            }
+            println!("{}", head.join(", "));
+            let line = |(p, x, y): &Moved| {
                 let q = quantity(p);
                 let f = |v: &Option<f64>| {
                     v.map_or("(not computed)".to_string(), |v| with_unit(v, q, system))
                 };
-                let rel = match (x, y) {
-                    (Some(x), Some(y)) if *x != 0.0 => {
-                        format!(" ({:+.4} %)", (y - x) / x.abs() * 100.0)
+                let r = rel(x, y).map_or(String::new(), |r| format!("  ({r:+.4} %)"));
+                format!("  {p}: {} -> {}{r}", f(x), f(y))
+            };
+            if !summary.is_empty() {
+                println!("summary figures");
+                for m in &summary {
+                    println!("{}", line(m));
+                }
+            }
+            if !givens.is_empty() {
+                println!("givens");
+                for (p, x, y) in &givens {
+                    println!("  {p}: {} -> {}", show(x), show(y));
+                }
+            }
+            if !structure.is_empty() {
+                println!("structure");
+                for s in &structure {
+                    println!("  {s}");
+                }
+            }
+            if !comments.is_empty() {
+                println!("comments");
+                for (x, y) in &comments {
+                    match (x, y) {
+                        (Some(x), _) => println!("  removed: {x}"),
+                        (_, Some(y)) => println!("  added: {y}"),
+                        _ => {}
                     }
-                    _ => String::new(),
-                };
-                println!("  {p}: {} -> {}{rel}", f(x), f(y));
+                }
+            }
+            if !other.is_empty() {
+                if a.all {
+                    println!("other derived values");
+                    for m in &other {
+                        println!("{}", line(m));
+                    }
+                } else {
+                    let largest = other
+                        .iter()
+                        // Entropy and absolute enthalpy have arbitrary zeros:
+                        // a relative change of them means nothing.
+                        .filter(|m| !(m.0.ends_with(".s") || m.0.ends_with(".ht")))
+                        // A figure that echoes a changed given is not news.
+                        .filter(|m| !givens.iter().any(|g| g.0 == m.0))
+                        .filter_map(|m| rel(&m.1, &m.2).map(|r| (r, &m.0)))
+                        .max_by(|x, y| x.0.abs().total_cmp(&y.0.abs()));
+                    let places: std::collections::BTreeSet<&str> = other
+                        .iter()
+                        .map(|(p, ..)| p.rsplit_once('.').map_or(p.as_str(), |x| x.0))
+                        .collect();
+                    let big =
+                        largest.map_or(String::new(), |(r, p)| format!("; largest {p} {r:+.4} %"));
+                    println!(
+                        "{} at {}{big} (--all lists them)",
+                        plural(
+                            other.len(),
+                            "other derived value moved",
+                            "other derived values moved"
+                        ),
+                        plural(places.len(), "place", "places"),
+                    );
+                }
             }
         }
     }
-    Ok(
-        if givens.is_empty() && structure.is_empty() && moved.is_empty() {
-            0
-        } else {
-            2
-        },
-    )
+    Ok(if differs { 2 } else { 0 })
 }

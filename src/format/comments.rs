@@ -36,7 +36,7 @@ use std::collections::HashMap;
 
 /// The first line the program writes in every workbook file (the same text
 /// as the format module's header; repeated so this file stands alone).
-const HEADER: &str = "// stationwise workbook: RON text; values keep the units they were typed in.";
+const HEADER: &str = super::HEADER;
 
 /// One level of indentation in canonical text.
 const INDENT: &str = "    ";

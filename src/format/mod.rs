@@ -21,6 +21,7 @@ use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 pub mod atomic;
+pub mod comments;
 pub use atomic::{AtomicFile, WriteError, WriteOptions};
 
 /// The first line of every workbook file.
@@ -88,6 +89,7 @@ pub fn parse(text: &str) -> Result<Workbook, LoadError> {
     }
     let mut book: Workbook = opts.from_str(text).map_err(syntax)?;
     book.resolve().map_err(LoadError::Book)?;
+    book.comments = comments::Comments::collect(text);
     // Structural checks live in the engine's compiler; run them here so a
     // file that cannot be evaluated is refused at load time.
     Engine::new(book.clone()).map_err(LoadError::Book)?;
@@ -112,7 +114,7 @@ pub fn to_text(book: &Workbook) -> String {
         .separate_tuple_members(false)
         .extensions(ron::extensions::Extensions::IMPLICIT_SOME);
     match ron::ser::to_string_pretty(book, cfg) {
-        Ok(body) => format!("{HEADER}\n{body}\n"),
+        Ok(body) => book.comments.apply(&format!("{HEADER}\n{body}\n")),
         // Serialising plain data structures cannot fail; keep the
         // signature infallible for callers but never lose data silently.
         Err(e) => format!("{HEADER}\n// serialisation failed: {e}\n"),
