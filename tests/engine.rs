@@ -857,7 +857,12 @@ fn diff_names_the_given_and_the_moved_values() {
     assert_ne!(edited, text);
     std::fs::write(&a, &text).unwrap();
     std::fs::write(&b, &edited).unwrap();
-    let out = bin().args(["diff", "--all"]).arg(&a).arg(&b).output().unwrap();
+    let out = bin()
+        .args(["diff", "--all"])
+        .arg(&a)
+        .arg(&b)
+        .output()
+        .unwrap();
     // Exit 2: differences found.
     assert_eq!(out.status.code(), Some(2), "{out:?}");
     let text = String::from_utf8(out.stdout).unwrap();
