@@ -173,13 +173,3 @@ pub fn explanation(
     }
     Ok(out)
 }
-
-/// For CSV in display units: put each column's unit into its key
-/// ("tt [K]"), so a spreadsheet reader never guesses the unit.
-pub fn keys_with_units(t: &mut Table) {
-    for c in &mut t.columns {
-        if !c.unit.is_empty() {
-            c.key = format!("{} [{}]", c.key, c.unit);
-        }
-    }
-}

@@ -3,11 +3,49 @@
 //! Every command that prints rows (flow tables, the atmosphere, stations,
 //! sweeps) builds one [`Table`]; the [`Printer`] trait turns it into text,
 //! CSV or JSON, so the three formats never drift apart. JSON is an object
-//! `{"rows": [{key: value, ...}, ...]}` with `null` for undefined cells;
-//! CSV has one header row of keys; text aligns columns under a header of
-//! labels and a line of units.
+//! `{"rows": [{key: value, ...}, ...]}` with `null` for undefined cells and
+//! full round-trip numbers; CSV has one header row of keys with their unit
+//! in brackets ("tt [K]"); text aligns columns under a header of labels and
+//! a line of units. Text and CSV print [`precision`] significant figures.
 
 use std::io::{self, Write};
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+/// Significant figures of numbers in text and CSV (JSON always carries the
+/// full round-trip value). Set once by the command line's `--precision`.
+static PRECISION: AtomicUsize = AtomicUsize::new(DEFAULT_PRECISION);
+
+/// Significant figures when nothing else is asked for.
+pub const DEFAULT_PRECISION: usize = 6;
+
+/// Set the significant figures of text and CSV numbers (clamped to 1..=17).
+pub fn set_precision(n: usize) {
+    PRECISION.store(n.clamp(1, 17), Ordering::Relaxed);
+}
+
+/// The significant figures of text and CSV numbers.
+pub fn precision() -> usize {
+    PRECISION.load(Ordering::Relaxed)
+}
+
+/// A CSV header cell: the key, and its unit in brackets when it has one
+/// ("tt [K]"), the one header style of every command.
+pub fn csv_key(c: &Column) -> String {
+    if c.unit.is_empty() {
+        c.key.clone()
+    } else {
+        format!("{} [{}]", c.key, c.unit)
+    }
+}
+
+/// A CSV cell: a number to [`precision`] significant figures.
+pub fn csv_cell(c: &Cell) -> String {
+    match c {
+        Cell::Num(v) => sig(*v, precision()),
+        Cell::Text(t) => t.clone(),
+        Cell::Empty => String::new(),
+    }
+}
 
 /// A column: machine key, human label, unit shown in text output.
 #[derive(Debug, Clone, PartialEq)]
@@ -112,9 +150,9 @@ pub fn printer(format: Format) -> Box<dyn Printer> {
     }
 }
 
-/// Aligned columns, six significant digits.
+/// Aligned columns, [`precision`] significant figures.
 pub struct TextPrinter;
-/// CSV with a header row of keys, full precision.
+/// CSV with a header row of keys with units, [`precision`] significant figures.
 pub struct CsvPrinter;
 /// JSON `{"rows": [...]}`, full precision.
 pub struct JsonPrinter;
@@ -140,6 +178,14 @@ pub fn sig(v: f64, sig: usize) -> String {
         return format!("{:.*e}", sig.saturating_sub(1), v);
     }
     let decimals = (sig as i32 - 1 - mag).max(0) as usize;
+    // Whole numbers longer than `sig` digits are rounded too (1974632.3 to
+    // six figures is 1974630), so no printed digit claims more than asked.
+    let v = if mag >= sig as i32 {
+        let unit = 10f64.powi(mag + 1 - sig as i32);
+        (v / unit).round() * unit
+    } else {
+        v
+    };
     let s = format!("{v:.decimals$}");
     if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
         s[1..].to_string()
@@ -150,7 +196,7 @@ pub fn sig(v: f64, sig: usize) -> String {
 
 fn text_cell(c: &Cell) -> String {
     match c {
-        Cell::Num(v) => sig(*v, 6),
+        Cell::Num(v) => sig(*v, precision()),
         Cell::Text(t) => t.clone(),
         Cell::Empty => "-".to_string(),
     }
@@ -292,15 +338,11 @@ impl Streamer {
             Format::Csv => {
                 let mut w = csv::Writer::from_writer(&mut *out);
                 if first {
-                    w.write_record(chunk.columns.iter().map(|c| c.key.as_str()))?;
+                    w.write_record(chunk.columns.iter().map(csv_key))?;
                     self.layout = Some((Vec::new(), Vec::new()));
                 }
                 for r in &chunk.rows {
-                    w.write_record(r.iter().map(|c| match c {
-                        Cell::Num(v) => format!("{v}"),
-                        Cell::Text(t) => t.clone(),
-                        Cell::Empty => String::new(),
-                    }))?;
+                    w.write_record(r.iter().map(csv_cell))?;
                 }
                 w.flush()?;
             }
@@ -338,13 +380,9 @@ impl Streamer {
 impl Printer for CsvPrinter {
     fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
         let mut w = csv::Writer::from_writer(out);
-        w.write_record(table.columns.iter().map(|c| c.key.as_str()))?;
+        w.write_record(table.columns.iter().map(csv_key))?;
         for r in &table.rows {
-            w.write_record(r.iter().map(|c| match c {
-                Cell::Num(v) => format!("{v}"),
-                Cell::Text(t) => t.clone(),
-                Cell::Empty => String::new(),
-            }))?;
+            w.write_record(r.iter().map(csv_cell))?;
         }
         w.flush()?;
         Ok(())
@@ -391,6 +429,8 @@ mod tests {
     fn significant_digits() {
         assert_eq!(sig(0.127801, 5), "0.12780");
         assert_eq!(sig(101325.0, 6), "101325");
+        assert_eq!(sig(1974632.3, 6), "1974630");
+        assert_eq!(sig(-1974635.0, 4), "-1975000");
         assert_eq!(sig(-0.0000001, 3), "-1.00e-7");
         assert_eq!(sig(-0.00001, 2), "-1.0e-5");
         assert_eq!(sig(-0.0001, 2), "-0.00010");
@@ -405,6 +445,7 @@ mod tests {
     fn json_and_csv_carry_nulls_and_keys() {
         let mut t = Table::new(vec![Column::new("a", "A", ""), Column::new("b", "B", "K")]);
         t.rows.push(vec![Cell::Num(1.5), Cell::Empty]);
+        t.rows.push(vec![Cell::Num(0.1 + 0.2), Cell::Num(2.0)]);
         let mut j = Vec::new();
         JsonPrinter.print(&t, &mut j).unwrap();
         let v: serde_json::Value = serde_json::from_slice(&j).unwrap();
@@ -412,6 +453,10 @@ mod tests {
         assert!(v["rows"][0]["b"].is_null());
         let mut c = Vec::new();
         CsvPrinter.print(&t, &mut c).unwrap();
-        assert_eq!(String::from_utf8(c).unwrap(), "a,b\n1.5,\n");
+        assert_eq!(
+            String::from_utf8(c).unwrap(),
+            "a,b [K]\n1.50000,\n0.300000,2.00000\n"
+        );
+        assert_eq!(v["rows"][1]["a"].as_f64(), Some(0.1 + 0.2));
     }
 }

@@ -6,7 +6,7 @@
 //! pressure ratio) that are turned into Mach numbers first. The keys of each
 //! relation's columns are part of the command-line contract (JSON and CSV).
 
-use crate::flow::{Branch, FlowState};
+use crate::flow::FlowState;
 use crate::flow::{
     FlowError, fanno, isentropic, rayleigh,
     shock::{self, Strength},
@@ -32,12 +32,32 @@ pub enum Relation {
 /// How the rows are chosen.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Rows {
-    /// Mach numbers.
+    /// The relation's Mach number (M1 for the shocks).
     Mach(Vec<f64>),
-    /// Area ratios A/A* on a branch.
-    AreaRatio(Vec<f64>, Branch),
-    /// Static-to-total pressure ratios.
-    PressureRatio(Vec<f64>),
+    /// Values of any one of the relation's columns, each turned into the
+    /// Mach number (or numbers) that gives it.
+    Given {
+        /// The column key ("p_pt", "a_astar", "pt2_pt1", "beta_weak_deg", ...).
+        key: String,
+        /// The values, in the column's own terms (a ratio, degrees).
+        values: Vec<f64>,
+        /// Which root where a value is reached at more than one Mach number.
+        branch: Pick,
+    },
+}
+
+/// Which root of an inverse to print.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Pick {
+    /// Not chosen: a value with roots on both sides of Mach 1 is a row problem
+    /// that asks for a choice.
+    Unstated,
+    /// Roots below Mach 1.
+    Subsonic,
+    /// Roots above Mach 1.
+    Supersonic,
+    /// Every root, a row each.
+    Both,
 }
 
 /// A gas for a table: the gas and the total temperature that fixes the
@@ -56,48 +76,11 @@ fn state(g: &TableGas, m: f64) -> Result<FlowState, FlowError> {
     isentropic::from_mach(&g.gas, g.tt, PT, m)
 }
 
-/// The Mach numbers of the rows.
-pub fn mach_numbers(g: &TableGas, rows: &Rows) -> Result<Vec<f64>, FlowError> {
-    match rows {
-        Rows::Mach(m) => Ok(m.clone()),
-        Rows::AreaRatio(list, branch) => list
-            .iter()
-            .map(|&r| {
-                if !(r.is_finite() && r >= 1.0) {
-                    return Err(FlowError::BadInput {
-                        what: "area ratio A/A*",
-                        value: r,
-                        why: "it must be at least 1",
-                    });
-                }
-                // Mass flow per area is G*/ratio: the branch picks the root.
-                let star = isentropic::sonic(&g.gas, g.tt, PT)?;
-                let area = 1.0 / (star.flux() / r);
-                Ok(isentropic::from_flow(&g.gas, g.tt, PT, 1.0, area, *branch)?.mach)
-            })
-            .collect(),
-        Rows::PressureRatio(list) => list
-            .iter()
-            .map(|&r| {
-                if !(r.is_finite() && r > 0.0 && r <= 1.0) {
-                    return Err(FlowError::BadInput {
-                        what: "pressure ratio p/pt",
-                        value: r,
-                        why: "it must lie above 0 and at most 1",
-                    });
-                }
-                Ok(isentropic::from_pressure(&g.gas, g.tt, PT, r * PT)?.mach)
-            })
-            .collect(),
-    }
-}
-
-/// Build the table.
-pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<Table, FlowError> {
-    let machs = mach_numbers(g, rows)?;
-    let cols = |v: &[(&str, &str)]| v.iter().map(|(k, l)| Column::new(k, l, "")).collect();
-    let mut t = match rel {
-        Relation::Isentropic => Table::new(cols(&[
+/// The column keys and labels of a relation, in order (the first is the
+/// row's Mach number).
+pub fn columns(rel: Relation) -> &'static [(&'static str, &'static str)] {
+    match rel {
+        Relation::Isentropic => &[
             ("mach", "M"),
             ("t_tt", "T/Tt"),
             ("p_pt", "p/pt"),
@@ -105,16 +88,16 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<Table, FlowErro
             ("a_astar", "A/A*"),
             ("mach_angle_deg", "mu deg"),
             ("prandtl_meyer_deg", "nu deg"),
-        ])),
-        Relation::NormalShock => Table::new(cols(&[
+        ],
+        Relation::NormalShock => &[
             ("mach1", "M1"),
             ("mach2", "M2"),
             ("p2_p1", "p2/p1"),
             ("t2_t1", "T2/T1"),
             ("rho2_rho1", "rho2/rho1"),
             ("pt2_pt1", "pt2/pt1"),
-        ])),
-        Relation::ObliqueShock(_) => Table::new(cols(&[
+        ],
+        Relation::ObliqueShock(_) => &[
             ("mach1", "M1"),
             ("deflection_deg", "theta deg"),
             ("beta_weak_deg", "beta weak"),
@@ -123,26 +106,312 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<Table, FlowErro
             ("beta_strong_deg", "beta strong"),
             ("mach2_strong", "M2 strong"),
             ("p2_p1_strong", "p2/p1 strong"),
-        ])),
-        Relation::Rayleigh => Table::new(cols(&[
+        ],
+        Relation::Rayleigh => &[
             ("mach", "M"),
             ("tt_ttstar", "Tt/Tt*"),
             ("t_tstar", "T/T*"),
             ("p_pstar", "p/p*"),
             ("pt_ptstar", "pt/pt*"),
-        ])),
-        Relation::Fanno => Table::new(cols(&[
+        ],
+        Relation::Fanno => &[
             ("mach", "M"),
             ("friction_4flstar_d", "4fL*/D"),
             ("t_tstar", "T/T*"),
             ("p_pstar", "p/p*"),
             ("pt_ptstar", "pt/pt*"),
-        ])),
-    };
-    for m in machs {
-        t.rows.push(row(rel, g, m)?);
+        ],
     }
-    Ok(t)
+}
+
+/// The range of the row's Mach number over which a relation is defined.
+fn mach_range(rel: Relation) -> (f64, f64) {
+    match rel {
+        Relation::Isentropic => (0.0, MACH_MAX),
+        Relation::NormalShock | Relation::ObliqueShock(_) => (1.0, MACH_MAX),
+        Relation::Rayleigh | Relation::Fanno => (1e-6, MACH_MAX),
+    }
+}
+
+/// Highest Mach number an inverse searches.
+pub const MACH_MAX: f64 = 50.0;
+
+/// Sample Mach numbers for an inverse over `[lo, hi]`: dense near the low
+/// end and around Mach 1, geometric above, with Mach 1 itself included.
+fn samples(lo: f64, hi: f64) -> Vec<f64> {
+    let mut v = Vec::with_capacity(800);
+    let lo_pos = lo.max(1e-6);
+    if lo < 1.0 {
+        if lo == 0.0 {
+            v.push(0.0);
+        }
+        // Geometric from lo to 0.05, linear to 1.
+        let n = 60;
+        let r = (0.05 / lo_pos).ln() / n as f64;
+        for i in 0..n {
+            v.push(lo_pos * (r * i as f64).exp());
+        }
+        let n = 300;
+        for i in 0..n {
+            v.push(0.05 + (1.0 - 0.05) * i as f64 / n as f64);
+        }
+    }
+    let n = 400;
+    let r = (hi / 1.0f64).ln() / n as f64;
+    for i in 0..=n {
+        v.push((r * i as f64).exp());
+    }
+    v
+}
+
+/// The value of column `idx` at Mach `m` (None where undefined).
+fn column_at(rel: Relation, g: &TableGas, m: f64, idx: usize) -> Option<f64> {
+    match row(rel, g, m).ok()?.get(idx)? {
+        Cell::Num(v) => Some(*v),
+        _ => None,
+    }
+}
+
+/// Every Mach number in the relation's range at which column `idx` equals
+/// `target`: the column is sampled, each sign change of (column - target)
+/// between neighbouring samples is bracketed and refined by Brent's method
+/// to a few parts in 1e15, and a sample that hits the value exactly is a
+/// root itself. Ascending.
+pub fn invert(rel: Relation, g: &TableGas, idx: usize, target: f64) -> Result<Vec<f64>, FlowError> {
+    let (lo, hi) = mach_range(rel);
+    let xs = samples(lo, hi);
+    let f = |m: f64| column_at(rel, g, m, idx).map(|v| v - target);
+    let mut roots: Vec<f64> = Vec::new();
+    let mut prev: Option<(f64, f64)> = None;
+    for &x in &xs {
+        let Some(y) = f(x) else {
+            prev = None;
+            continue;
+        };
+        if y == 0.0 {
+            roots.push(x);
+        } else if let Some((px, py)) = prev
+            && py != 0.0
+            && py.signum() != y.signum()
+        {
+            let r = refine(&f, px, py, x, y);
+            // A sign change across a pole or a jump (the oblique shock's
+            // detachment) refines onto the jump: keep only true roots.
+            if let Some(m) = r
+                && let Some(y) = f(m)
+                && y.abs() <= 1e-9 * target.abs().max(1.0)
+            {
+                roots.push(m);
+            }
+        }
+        prev = Some((x, y));
+    }
+    roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs().max(1.0));
+    Ok(roots)
+}
+
+/// Refine a bracketed sign change of `f` on `[a, b]` by the Illinois
+/// (modified regula falsi) method, which keeps the bracket and converges
+/// superlinearly, down to adjacent doubles; None where `f` is undefined
+/// inside. The caller judges whether the point is a root or a jump.
+fn refine(
+    f: &impl Fn(f64) -> Option<f64>,
+    mut a: f64,
+    mut fa: f64,
+    mut b: f64,
+    mut fb: f64,
+) -> Option<f64> {
+    let mut side = 0i8;
+    for _ in 0..200 {
+        let width = (b - a).abs();
+        if width <= 2.0 * f64::EPSILON * a.abs().max(b.abs()) {
+            break;
+        }
+        let mut c = (a * fb - b * fa) / (fb - fa);
+        // Keep strictly inside; fall back to bisection on a bad secant.
+        if !(c > a.min(b) && c < a.max(b)) {
+            c = 0.5 * (a + b);
+        }
+        let fc = f(c)?;
+        if fc == 0.0 {
+            return Some(c);
+        }
+        if fc.signum() == fb.signum() {
+            b = c;
+            fb = fc;
+            if side == -1 {
+                fa *= 0.5;
+            }
+            side = -1;
+        } else {
+            a = c;
+            fa = fc;
+            if side == 1 {
+                fb *= 0.5;
+            }
+            side = 1;
+        }
+    }
+    Some(if fa.abs() < fb.abs() { a } else { b })
+}
+
+/// One row of a table, or the reason it has none.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RowOutcome {
+    /// The cells (the given value in its column when the row failed).
+    pub cells: Vec<Cell>,
+    /// Why the row could not be computed.
+    pub problem: Option<String>,
+}
+
+/// Build the table: every row is computed on its own, a row that cannot be
+/// computed keeps its place with its given value and its reason in the
+/// `problem` column (the last). Returns the table and the number of rows
+/// that failed.
+pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize), String> {
+    let keys = columns(rel);
+    let mut cols: Vec<Column> = keys.iter().map(|(k, l)| Column::new(k, l, "")).collect();
+    cols.push(Column::new("problem", "note", ""));
+    let mut t = Table::new(cols);
+    let mut failed = 0;
+    let mut push = |t: &mut Table, r: RowOutcome| {
+        let mut cells = r.cells;
+        failed += usize::from(r.problem.is_some());
+        cells.push(r.problem.map_or(Cell::Empty, Cell::Text));
+        t.rows.push(cells);
+    };
+    let blank = |idx: usize, v: f64| {
+        let mut c = vec![Cell::Empty; keys.len()];
+        c[idx] = Cell::from(v);
+        c
+    };
+    match rows {
+        Rows::Mach(ms) => {
+            for &m in ms {
+                match row(rel, g, m) {
+                    Ok(cells) => push(
+                        &mut t,
+                        RowOutcome {
+                            cells,
+                            problem: None,
+                        },
+                    ),
+                    Err(e) => push(
+                        &mut t,
+                        RowOutcome {
+                            cells: blank(0, m),
+                            problem: Some(format!("at {} {m}: {e}", keys[0].1)),
+                        },
+                    ),
+                }
+            }
+        }
+        Rows::Given {
+            key,
+            values,
+            branch,
+        } => {
+            let idx = keys.iter().position(|(k, _)| k == key).ok_or_else(|| {
+                format!(
+                    "no column \"{key}\" in this relation; it has {}",
+                    keys.iter().map(|k| k.0).collect::<Vec<_>>().join(", ")
+                )
+            })?;
+            if let Relation::ObliqueShock(_) = rel
+                && idx == 1
+            {
+                return Err("the deflection is set by --deflection; give another column".into());
+            }
+            let label = keys[idx].1;
+            for &v in values {
+                if idx == 0 {
+                    match row(rel, g, v) {
+                        Ok(cells) => push(
+                            &mut t,
+                            RowOutcome {
+                                cells,
+                                problem: None,
+                            },
+                        ),
+                        Err(e) => push(
+                            &mut t,
+                            RowOutcome {
+                                cells: blank(0, v),
+                                problem: Some(format!("at {label} {v}: {e}")),
+                            },
+                        ),
+                    }
+                    continue;
+                }
+                let fail = |why: String| RowOutcome {
+                    cells: blank(idx, v),
+                    problem: Some(format!("{label} = {v}: {why}")),
+                };
+                if !v.is_finite() {
+                    push(&mut t, fail("not a finite number".into()));
+                    continue;
+                }
+                let roots = match invert(rel, g, idx, v) {
+                    Ok(r) => r,
+                    Err(e) => {
+                        push(&mut t, fail(e.to_string()));
+                        continue;
+                    }
+                };
+                let sub: Vec<f64> = roots.iter().copied().filter(|m| *m < 1.0).collect();
+                let sup: Vec<f64> = roots.iter().copied().filter(|m| *m >= 1.0).collect();
+                let chosen: Vec<f64> = match branch {
+                    Pick::Subsonic => sub.clone(),
+                    Pick::Supersonic => sup.clone(),
+                    Pick::Both => roots.clone(),
+                    Pick::Unstated if !sub.is_empty() && !sup.is_empty() => {
+                        let list = |v: &[f64]| {
+                            v.iter()
+                                .map(|m| crate::report::sig(*m, 6))
+                                .collect::<Vec<_>>()
+                                .join(", ")
+                        };
+                        push(
+                            &mut t,
+                            fail(format!(
+                                "reached below Mach 1 (M {}) and above (M {}): choose with --branch subsonic, supersonic or both",
+                                list(&sub),
+                                list(&sup)
+                            )),
+                        );
+                        continue;
+                    }
+                    Pick::Unstated => roots.clone(),
+                };
+                if chosen.is_empty() {
+                    let why = if roots.is_empty() {
+                        let (lo, hi) = mach_range(rel);
+                        format!("not reached at any Mach number from {lo} to {hi}")
+                    } else {
+                        format!(
+                            "reached only on the other branch (M {})",
+                            crate::report::sig(roots[0], 6)
+                        )
+                    };
+                    push(&mut t, fail(why));
+                    continue;
+                }
+                for m in chosen {
+                    match row(rel, g, m) {
+                        Ok(cells) => push(
+                            &mut t,
+                            RowOutcome {
+                                cells,
+                                problem: None,
+                            },
+                        ),
+                        Err(e) => push(&mut t, fail(e.to_string())),
+                    }
+                }
+            }
+        }
+    }
+    Ok((t, failed))
 }
 
 fn row(rel: Relation, g: &TableGas, m: f64) -> Result<Vec<Cell>, FlowError> {
@@ -304,7 +573,9 @@ mod tests {
             gas: Gas::Perfect(PerfectGas::AIR),
             tt: 288.15,
         };
-        let m = mach_numbers(&g, &Rows::AreaRatio(vec![1.6875], Branch::Supersonic)).unwrap();
-        assert!((m[0] - 2.0).abs() < 1e-4);
+        let m = invert(Relation::Isentropic, &g, 4, 1.6875).unwrap();
+        assert_eq!(m.len(), 2, "{m:?}");
+        assert!((m[1] - 2.0).abs() < 1e-4, "{m:?}");
+        assert!(m[0] < 1.0);
     }
 }

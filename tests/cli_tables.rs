@@ -226,53 +226,124 @@ fn atmosphere_geometric_altitude_matches_us_standard_1976() {
 }
 
 #[test]
-fn bad_requests_give_one_line_errors() {
-    let cases: [&[&str]; 4] = [
+fn a_row_that_cannot_be_computed_keeps_its_place_with_its_reason() {
+    let cases: [(&[&str], &str); 3] = [
         // Subsonic upstream flow has no normal shock.
-        &["table", "normal-shock", "--gamma", "1.4", "--mach", "0.8"],
+        (
+            &["table", "normal-shock", "--gamma", "1.4", "--mach", "0.8"],
+            "0.8",
+        ),
         // Beyond the maximum deflection at M 2 (about 23 deg): detached.
-        &[
-            "table",
-            "oblique-shock",
-            "--gamma",
-            "1.4",
-            "--mach",
-            "2",
-            "--deflection",
-            "40",
-        ],
+        (
+            &[
+                "table",
+                "oblique-shock",
+                "--gamma",
+                "1.4",
+                "--mach",
+                "2",
+                "--deflection",
+                "40",
+            ],
+            "detach",
+        ),
         // Below the 200 K floor of the gas data.
-        &[
-            "table",
-            "isentropic",
-            "--gas",
-            "air",
-            "--tt",
-            "50",
-            "--mach",
-            "1",
-        ],
-        // Not a number.
-        &["table", "isentropic", "--mach", "abc"],
+        (
+            &[
+                "table",
+                "isentropic",
+                "--gas",
+                "air",
+                "--tt",
+                "50",
+                "--mach",
+                "1",
+            ],
+            "range",
+        ),
     ];
-    for args in cases {
+    for (args, why) in cases {
         let out = run(args);
         let err = String::from_utf8_lossy(&out.stderr);
-        assert!(!out.status.success(), "{args:?} succeeded");
-        assert!(out.status.code().is_some(), "{args:?} killed by a signal");
-        assert_ne!(
-            out.status.code(),
-            Some(101),
-            "{args:?} exit code of a panic"
-        );
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
         assert!(!err.contains("panicked"), "{args:?} panicked: {err}");
-        assert!(!err.contains("RUST_BACKTRACE"), "{args:?}: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "{args:?}: {err:?}");
+        let text = String::from_utf8(out.stdout).unwrap();
         assert_eq!(
-            err.trim_end().lines().count(),
-            1,
-            "{args:?}: not one line: {err:?}"
+            text.lines().count(),
+            2,
+            "{args:?}: header and the row:\n{text}"
         );
-        assert!(!err.trim().is_empty(), "{args:?}: empty stderr");
+        assert!(
+            text.lines().nth(1).unwrap().contains(why),
+            "{args:?}: {text}"
+        );
+    }
+    // The case: Mach 0 to 3 in air at 300 K. The last two static
+    // temperatures (167 K, 107 K) lie below the gas data: four... three
+    // rows computed and the two others in place, in CSV with a problem.
+    let mut a = vec![
+        "table",
+        "isentropic",
+        "--gas",
+        "air",
+        "--tt",
+        "300",
+        "--mach",
+        "0,0.5,1,2,3",
+    ];
+    a.extend(["--format", "csv"]);
+    let out = run(&a);
+    assert_eq!(out.status.code(), Some(2));
+    let text = String::from_utf8(out.stdout).unwrap();
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let h = r.headers().unwrap().clone();
+    let pi = h.iter().position(|k| k == "problem").unwrap();
+    let rows: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();
+    assert_eq!(rows.len(), 5);
+    let failed: Vec<&str> = rows
+        .iter()
+        .filter(|r| !r[pi].is_empty())
+        .map(|r| &r[0])
+        .collect();
+    assert_eq!(failed, ["2.00000", "3.00000"]);
+    assert!(rows[3][pi].contains("M 2"), "{}", &rows[3][pi]);
+    assert!(rows[3][1].is_empty(), "no value in a failed row");
+    let json = run(&[
+        "table",
+        "isentropic",
+        "--gas",
+        "air",
+        "--tt",
+        "300",
+        "--mach",
+        "0,2",
+        "--format",
+        "json",
+    ]);
+    let v: Value = serde_json::from_slice(&json.stdout).unwrap();
+    assert!(v["rows"][0]["problem"].is_null());
+    assert!(v["rows"][1]["t_tt"].is_null());
+    assert!(
+        v["rows"][1]["problem"]
+            .as_str()
+            .unwrap()
+            .contains("below the gas data")
+    );
+}
+
+#[test]
+fn bad_requests_give_one_line_errors() {
+    for args in [
+        &["table", "isentropic", "--mach", "abc"][..],
+        &["table", "isentropic", "--given", "bogus=1"],
+        &["table", "isentropic", "--given", "p_pt"],
+    ] {
+        let out = run(args);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{args:?}: {err}");
+        assert!(!err.contains("panicked"), "{args:?} panicked: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "{args:?}: {err:?}");
         assert!(out.stdout.is_empty(), "{args:?} printed a table anyway");
     }
 }
@@ -318,6 +389,8 @@ fn csv_has_a_header_of_keys_and_one_line_per_row() {
         "0.5,1,2",
         "--format",
         "csv",
+        "--precision",
+        "15",
     ]);
     let lines: Vec<&str> = text.lines().collect();
     assert_eq!(lines.len(), 4, "{text}");
@@ -334,7 +407,7 @@ fn csv_has_a_header_of_keys_and_one_line_per_row() {
     let lines: Vec<&str> = atm.lines().collect();
     assert_eq!(lines.len(), 5, "{atm}");
     assert!(
-        lines[0].starts_with("altitude_m,temperature_k"),
+        lines[0].starts_with("altitude [m],temperature [K]"),
         "{}",
         lines[0]
     );

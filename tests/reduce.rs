@@ -862,6 +862,9 @@ fn demo_reduce_with_uncertainty_writes_one_csv_row_per_scan() {
         "--uncertainty",
         "--format",
         "csv",
+        // Round-trip figures: the checks below are at 1e-9.
+        "--precision",
+        "17",
     ]);
     assert!(
         out.status.success(),
@@ -873,7 +876,8 @@ fn demo_reduce_with_uncertainty_writes_one_csv_row_per_scan() {
     let col = |name: &str| {
         header
             .iter()
-            .position(|h| h == name)
+            // The header carries the SI unit: "station.3.tt [K]".
+            .position(|h| h == name || h.starts_with(&format!("{name} [")))
             .unwrap_or_else(|| panic!("no column {name} in {header:?}"))
     };
     let recs: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();

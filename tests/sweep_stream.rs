@@ -72,6 +72,6 @@ fn a_sweep_with_failed_points_exits_2_and_counts_them() {
     let text = String::from_utf8_lossy(&out.stdout);
     // The points above 1 carry their reason and no thrust.
     let last = text.lines().last().unwrap();
-    assert!(last.starts_with("1.1,,"), "{last}");
+    assert!(last.starts_with("1.10000,,"), "{last}");
     assert!(last.contains("above 1"), "{last}");
 }

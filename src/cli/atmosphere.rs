@@ -53,31 +53,38 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     } else {
         AltitudeKind::Geopotential
     };
+    // JSON: plain SI under fixed keys that name the SI unit, whatever
+    // --units; text and CSV: display units, the unit in the header.
+    let json = a.format == OutFormat::Json;
+    let shown_system = if json { UnitSystem::Si } else { system };
     let qs = [
-        ("altitude", Quantity::Length),
-        ("temperature", Quantity::Temperature),
-        ("pressure", Quantity::Pressure),
-        ("density", Quantity::Density),
-        ("sound_speed", Quantity::Velocity),
+        ("altitude", "altitude_m", Quantity::Length),
+        ("temperature", "temperature_k", Quantity::Temperature),
+        ("pressure", "pressure_pa", Quantity::Pressure),
+        ("density", "density_kg_m3", Quantity::Density),
+        ("sound_speed", "sound_speed_m_s", Quantity::Velocity),
     ];
-    // Keys carry the unit, so JSON readers never guess: SI keys are the contract.
-    let unit_of = |q: Quantity| match (system, q) {
+    let unit_of = |sys: UnitSystem, q: Quantity| match (sys, q) {
         (UnitSystem::Si, Quantity::Length) => units::find_unit("m"),
         (UnitSystem::Si, Quantity::Pressure) => units::find_unit("Pa"),
         (UnitSystem::Us, Quantity::Length) => units::find_unit("ft"),
-        _ => Some(units::display_unit(q, system)),
+        _ => Some(units::display_unit(q, sys)),
     };
     let mut cols = Vec::new();
     let mut unit_list = Vec::new();
-    for (name, q) in qs {
-        let u = unit_of(q).ok_or_else(|| Failure::bad("internal: unit table incomplete"))?;
-        let key_unit = u.symbol.to_lowercase().replace('/', "_").replace("deg", "");
-        cols.push(Column::new(&format!("{name}_{key_unit}"), name, u.symbol));
+    for (name, si_key, q) in qs {
+        let u = unit_of(shown_system, q)
+            .ok_or_else(|| Failure::bad("internal: unit table incomplete"))?;
+        let key = if json { si_key } else { name };
+        cols.push(Column::new(key, name, u.symbol));
         unit_list.push(u);
     }
+    // Bare altitudes are read in the chosen unit set's length unit.
+    let input_unit = unit_of(system, Quantity::Length)
+        .ok_or_else(|| Failure::bad("internal: unit table incomplete"))?;
     let mut t = Table::new(cols);
     for h in alts {
-        let h_si = units::to_si(h, unit_list[0]);
+        let h_si = units::to_si(h, input_unit);
         let s = atmosphere::standard(h_si, kind, offset).map_err(Failure::bad)?;
         let vals = [
             h_si,

@@ -36,9 +36,6 @@ pub(super) struct Args {
     /// Display units for text and CSV (JSON is SI).
     #[arg(long, value_enum, default_value_t = Units::Si)]
     units: Units,
-    /// Significant figures of numbers in text and CSV.
-    #[arg(long, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=17))]
-    precision: u8,
 }
 
 /// One derived value that moved: path, old, new (SI).
@@ -194,7 +191,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 .map_err(io)?;
             let num = |v: Option<f64>, q| {
                 v.map_or(String::new(), |v| {
-                    crate::report::sig(shown(v, q, system), a.precision as usize)
+                    crate::report::sig(shown(v, q, system), crate::report::precision())
                 })
             };
             for (p, x, y) in &givens {

@@ -216,20 +216,21 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             writeln!(out).map_err(io)?;
         }
         OutFormat::Csv => {
-            let mut st = stations_table(&engine, system);
-            crate::present::keys_with_units(&mut st);
-            report::CsvPrinter.print(&st, &mut out).map_err(io)?;
-            writeln!(out).map_err(io)?;
+            // One table a CSV reader can take whole: every derived value
+            // (stations, component figures, shafts, summary) as a row, in
+            // display units.
             let mut t = Table::new(vec![
-                Column::new("summary", "summary", ""),
+                Column::new("path", "path", ""),
                 Column::new("value", "value", ""),
                 Column::new("unit", "unit", ""),
+                Column::new("what", "what", ""),
             ]);
-            for (k, _, v, q) in summary_entries(&engine) {
+            for ad in engine.addresses().into_iter().filter(|ad| !ad.given) {
                 t.rows.push(vec![
-                    Cell::from(k),
-                    Cell::from(common::shown(v, q, system)),
-                    Cell::from(common::unit_label(q, system)),
+                    Cell::from(ad.path),
+                    Cell::from(ad.value.map(|v| common::shown(v, ad.quantity, system))),
+                    Cell::from(common::unit_label(ad.quantity, system)),
+                    Cell::from(ad.label),
                 ]);
             }
             report::CsvPrinter.print(&t, &mut out).map_err(io)?;

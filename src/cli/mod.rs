@@ -43,6 +43,10 @@ pub struct Cli {
     /// Terminal: start in US customary units.
     #[arg(long)]
     us: bool,
+    /// Significant figures of numbers in text and CSV tables (JSON always
+    /// carries the full round-trip value).
+    #[arg(long, global = true, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=17))]
+    precision: u8,
 }
 
 #[derive(Debug, Subcommand)]
@@ -158,6 +162,7 @@ pub fn run() -> ExitCode {
             return ExitCode::from(code);
         }
     };
+    crate::report::set_precision(cli.precision as usize);
     let Some(command) = cli.command else {
         let opts = crate::tui::Options {
             ascii: cli.ascii,

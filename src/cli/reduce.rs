@@ -1,7 +1,7 @@
 //! `stationwise reduce` and `stationwise uncertainty`: scans through a workbook.
 
 use super::common::{self, with_unit};
-use super::{Failure, OutFormat, Units};
+use super::{Failure, Units};
 use crate::reduce::{self, Options, Plan, ScanResult};
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
@@ -24,15 +24,25 @@ pub(super) struct Args {
     /// Write here instead of standard output.
     #[arg(long)]
     out: Option<PathBuf>,
-    /// Output format (csv or json).
-    #[arg(long, value_enum, default_value_t = OutFormat::Csv)]
-    format: OutFormat,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = ScanFormat::Csv)]
+    format: ScanFormat,
     /// Add uncertainty columns (ASME PTC 19.1 approach, 95 %).
     #[arg(long)]
     uncertainty: bool,
     /// Monte Carlo samples per scan to cross-check the uncertainty.
     #[arg(long, default_value_t = 0)]
     monte_carlo: usize,
+}
+
+/// What `reduce` writes: rows for a program, never an aligned page (a
+/// million scans do not make one).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub(super) enum ScanFormat {
+    /// Comma-separated values, SI, the unit in each header ("station.4.tt [K]").
+    Csv,
+    /// JSON object with `rows`, full-precision SI.
+    Json,
 }
 
 fn report_list(text: &Option<String>, engine: &crate::engine::Engine) -> Vec<String> {
@@ -49,11 +59,6 @@ fn report_list(text: &Option<String>, engine: &crate::engine::Engine) -> Vec<Str
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
     let report = report_list(&a.report, &engine);
-    if a.format == OutFormat::Text {
-        return Err(Failure::bad(
-            "reduce writes csv or json (--format csv|json)",
-        ));
-    }
     if a.monte_carlo > MAX_MC {
         return Err(Failure::bad(format!(
             "--monte-carlo: at most {MAX_MC} samples per scan"
@@ -107,24 +112,34 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     } else {
         None
     };
+    // The CSV header names each value's SI unit, as every command's CSV does.
+    let with_si = |key: String, path: &str| {
+        let q = crate::engine::address::quantity(&engine, path)
+            .unwrap_or(crate::units::Quantity::Ratio);
+        match q {
+            crate::units::Quantity::Ratio | crate::units::Quantity::Mach => key,
+            _ => format!("{key} [{}]", q.si_symbol()),
+        }
+    };
     let mut header = vec!["row".to_string()];
-    header.extend(report.iter().cloned());
+    header.extend(report.iter().map(|r| with_si(r.clone(), r)));
     if a.uncertainty {
         for r in &report {
-            header.push(format!("{r}.u95"));
+            header.push(with_si(format!("{r}.u95"), r));
             header.push(format!("{r}.top"));
         }
     }
     if a.monte_carlo > 0 {
         for r in &report {
-            header.push(format!("{r}.mc_u95"));
+            header.push(with_si(format!("{r}.mc_u95"), r));
         }
     }
     header.push("problems".into());
     header.push("flags".into());
     let mut bad_scans = 0u64;
     let mut flagged_scans = 0u64;
-    let cell = |v: Option<f64>| v.map_or(String::new(), |x| format!("{x}"));
+    let digits = crate::report::precision();
+    let cell = |v: Option<f64>| v.map_or(String::new(), |x| crate::report::sig(x, digits));
     let n = report.len();
     // Rows are formatted on the worker threads; the sink only writes.
     let csv_row = |s: &ScanResult| -> ((bool, bool), Vec<String>) {
@@ -183,7 +198,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         }
     };
     let result = match a.format {
-        OutFormat::Json => {
+        ScanFormat::Json => {
             let w = out;
             let mut first = true;
             let io = |e: std::io::Error| Failure::bad(format!("cannot write the output: {e}"));
@@ -207,7 +222,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             w.flush().map_err(io)?;
             r
         }
-        _ => {
+        ScanFormat::Csv => {
             let mut w = csv::Writer::from_writer(out);
             w.write_record(&header)
                 .map_err(|e| Failure::bad(e.to_string()))?;

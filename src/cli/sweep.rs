@@ -91,10 +91,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     // column is always there, since rows are written before the last point
     // is known.
     cols.push(Column::new("problem", "problem", ""));
-    let mut head = Table::new(cols);
-    if a.format == OutFormat::Csv {
-        crate::present::keys_with_units(&mut head);
-    }
+    let head = Table::new(cols);
     // JSON carries plain SI (K, Pa, N, kg/s, W, rad/s); text and CSV the display units.
     let json = a.format == OutFormat::Json;
     let conv = |v: f64, q| if json { v } else { shown(v, q, system) };

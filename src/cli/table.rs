@@ -1,9 +1,8 @@
 //! `stationwise table`: flow tables for a calorically or thermally perfect gas.
 
 use super::{Failure, OutFormat, print_table};
-use crate::flow::Branch;
 use crate::gas::{Composition, Fuel, Gas, PerfectGas};
-use crate::table::{self, Relation, Rows, TableGas};
+use crate::table::{self, Pick, Relation, Rows, TableGas};
 use crate::units::{self, Quantity};
 use clap::ValueEnum;
 
@@ -35,9 +34,16 @@ pub(super) enum BranchArg {
     Subsonic,
     /// Above Mach 1.
     Supersonic,
+    /// Every root, a row each.
+    Both,
 }
 
-/// Rows come from --mach, or from --area-ratio with --branch, or from --p-pt.
+/// Rows come from --mach, or from any one column's values with
+/// --given KEY=LIST (the Mach number that gives each value is found; where
+/// a value is reached both below and above Mach 1, --branch chooses).
+/// --area-ratio and --p-pt are short for --given a_astar=... and p_pt=....
+/// A row that cannot be computed is printed in place with its reason
+/// (exit 2).
 #[derive(Debug, clap::Args)]
 pub(super) struct Args {
     /// The relation to tabulate.
@@ -63,13 +69,18 @@ pub(super) struct Args {
     /// Mach numbers: a comma list and/or FROM:TO:STEP ranges.
     #[arg(long, allow_hyphen_values = true)]
     mach: Option<String>,
-    /// Area ratios A/A* (rows by inverse): list as for --mach.
-    #[arg(long, conflicts_with_all = ["mach", "p_pt"], requires = "branch")]
+    /// Any column's values as the input: KEY=LIST, KEY one of the
+    /// relation's column keys (as the CSV header names them: p_pt, a_astar,
+    /// pt2_pt1, beta_weak_deg, friction_4flstar_d, ...).
+    #[arg(long, conflicts_with_all = ["mach", "area_ratio", "p_pt"], allow_hyphen_values = true)]
+    given: Option<String>,
+    /// Area ratios A/A* (isentropic; short for --given a_astar=LIST).
+    #[arg(long, conflicts_with_all = ["mach", "p_pt"])]
     area_ratio: Option<String>,
-    /// Branch for --area-ratio.
+    /// Which root where a given value is reached below and above Mach 1.
     #[arg(long)]
     branch: Option<BranchArg>,
-    /// Static-to-total pressure ratios p/pt (rows by inverse).
+    /// Static-to-total pressure ratios p/pt (isentropic; short for --given p_pt=LIST).
     #[arg(long, conflicts_with = "mach")]
     p_pt: Option<String>,
     /// Flow deflection for oblique-shock, degrees.
@@ -84,19 +95,40 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let list = |flag: &str, s: &str| {
         table::parse_list(s).map_err(|e| Failure::bad(format!("{flag}: {e}")))
     };
+    let pick = match a.branch {
+        None => Pick::Unstated,
+        Some(BranchArg::Subsonic) => Pick::Subsonic,
+        Some(BranchArg::Supersonic) => Pick::Supersonic,
+        Some(BranchArg::Both) => Pick::Both,
+    };
+    let given = |key: &str, flag: &str, text: &str| -> Result<Rows, Failure> {
+        Ok(Rows::Given {
+            key: key.to_string(),
+            values: list(flag, text)?,
+            branch: pick,
+        })
+    };
     let rows = if let Some(m) = &a.mach {
+        if a.branch.is_some() {
+            return Err(Failure::bad(
+                "--branch chooses among the roots of --given, --area-ratio or --p-pt; --mach rows have one",
+            ));
+        }
         Rows::Mach(list("--mach", m)?)
+    } else if let Some(g) = &a.given {
+        let (key, values) = g.split_once('=').ok_or_else(|| {
+            Failure::bad(format!(
+                "--given \"{g}\": write KEY=LIST, for example p_pt=0.5,0.6"
+            ))
+        })?;
+        given(key.trim(), "--given", values)?
     } else if let Some(r) = &a.area_ratio {
-        let b = match a.branch {
-            Some(BranchArg::Supersonic) => Branch::Supersonic,
-            _ => Branch::Subsonic,
-        };
-        Rows::AreaRatio(list("--area-ratio", r)?, b)
+        given("a_astar", "--area-ratio", r)?
     } else if let Some(p) = &a.p_pt {
-        Rows::PressureRatio(list("--p-pt", p)?)
+        given("p_pt", "--p-pt", p)?
     } else {
         return Err(Failure::bad(
-            "give rows with --mach LIST, --area-ratio LIST --branch B, or --p-pt LIST",
+            "give rows with --mach LIST, or --given KEY=LIST (any column), --area-ratio LIST or --p-pt LIST",
         ));
     };
     for (key, v, q) in [
@@ -140,7 +172,36 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         RelationArg::Rayleigh => Relation::Rayleigh,
         RelationArg::Fanno => Relation::Fanno,
     };
-    let t = table::build(rel, &TableGas { gas, tt }, &rows).map_err(Failure::bad)?;
+    if let (Rows::Given { key, .. }, false) = (&rows, a.area_ratio.is_none() && a.p_pt.is_none())
+        && rel != Relation::Isentropic
+    {
+        return Err(Failure::bad(format!(
+            "--area-ratio and --p-pt are isentropic columns; for this relation use --given {key}=... with one of its columns"
+        )));
+    }
+    let (mut t, failed) = table::build(rel, &TableGas { gas, tt }, &rows).map_err(Failure::bad)?;
+    // Aligned text shows the note column only when a row has a note; CSV
+    // and JSON always carry `problem`, so a reader's columns never move.
+    if a.format == OutFormat::Text && failed == 0 {
+        t.columns.pop();
+        for r in &mut t.rows {
+            r.pop();
+        }
+    }
     print_table(&t, a.format)?;
+    if failed > 0 {
+        use std::io::Write;
+        let _ = writeln!(
+            std::io::stderr(),
+            "stationwise: {failed} of {} rows could not be computed (see the {} column)",
+            t.rows.len(),
+            if a.format == OutFormat::Text {
+                "note"
+            } else {
+                "problem"
+            }
+        );
+        return Ok(2);
+    }
     Ok(0)
 }

@@ -192,6 +192,10 @@ pub fn oblique(
 pub mod general {
     use super::*;
 
+    /// Normal Mach number above 1 below which a wave is solved in closed
+    /// form at the upstream gamma (see [`jump`]).
+    pub const WEAK_WAVE: f64 = 2e-5;
+
     /// Solve the jump conditions for upstream static `t1`, `p1` and normal
     /// velocity `u1`: returns downstream (T2, p2, x = rho1/rho2).
     pub fn jump<G: Thermo + ?Sized>(
@@ -210,6 +214,16 @@ pub mod general {
         }
         let mom = rho1 * u1 * u1;
         let t2 = |x: f64| x * (p1 + mom * (1.0 - x)) / (rho1 * r);
+        // A wave barely above Mach 1 (an oblique shock's wave angle next
+        // to the Mach angle): the jump residual between the shock root and
+        // the trivial one at x = 1 is of order (M1 - 1)^3, below round-off,
+        // so no bracket can be found. Across so weak a wave the temperature
+        // rises by a few parts in 1e5 and gamma by less than 1e-7, so the
+        // closed form at the upstream gamma is exact to about 1e-11 in x.
+        if m1 < 1.0 + WEAK_WAVE {
+            let x = 1.0 / closed::rho2_rho1(m1, g1);
+            return Ok((t2(x), p1 + mom * (1.0 - x), x));
+        }
         let scale = s1.h.abs().max(0.5 * u1 * u1);
         let f = |x: f64| -> Result<f64, FlowError> {
             Ok((gas.h(t2(x))? - s1.h - 0.5 * u1 * u1 * (1.0 - x * x)) / scale)
