@@ -490,8 +490,8 @@ fn row(rel: Relation, g: &TableGas, m: f64) -> Result<Vec<Cell>, FlowError> {
     })
 }
 
-/// Parse a list of numbers: "0.5,1,2" or "FROM:TO:STEP" (inclusive of TO
-/// within a rounding tolerance), or a mix of both separated by commas.
+/// Parse a list of numbers: values, `FROM:TO:STEP` (a step size) and
+/// `FROM:TO@N` (N points) ranges, mixed with commas (see [`crate::range`]).
 pub fn parse_list(text: &str) -> Result<Vec<f64>, String> {
     // Every part is read and counted before any row is made, so the cap
     // holds for the whole request, however it is spelt.
@@ -513,38 +513,33 @@ pub fn parse_list(text: &str) -> Result<Vec<f64>, String> {
                 Err(format!("\"{s}\" is not a finite number"))
             }
         };
-        let pieces: Vec<&str> = part.split(':').collect();
-        let (a, s, n) = match pieces.as_slice() {
-            [one] => (num(one)?, 0.0, 0usize),
-            [a, b, s] => {
+        let (a, b, n) = match crate::range::split(part)? {
+            crate::range::Spec::One(v) => (num(v)?, num(v)?, 0),
+            crate::range::Spec::Step(a, b, s) => {
                 let (a, b, s) = (num(a)?, num(b)?, num(s)?);
-                if s <= 0.0 {
-                    return Err(format!("\"{part}\": the step must be positive"));
-                }
+                (a, b, crate::range::intervals(a, b, s, part, MAX_ROWS)?)
+            }
+            crate::range::Spec::Points(a, b, n) => {
+                let (a, b) = (num(a)?, num(b)?);
                 if b < a {
                     return Err(format!("\"{part}\": TO must not be below FROM"));
                 }
-                let steps = ((b - a) / s + 1e-9).floor();
-                if !steps.is_finite() || steps >= MAX_ROWS as f64 {
-                    return Err(format!("\"{part}\": more than {MAX_ROWS} rows"));
-                }
-                (a, s, steps as usize)
+                (a, b, n - 1)
             }
-            _ => return Err(format!("\"{part}\": use a number or FROM:TO:STEP")),
         };
-        total += n + 1;
+        total = total.saturating_add(n + 1);
         if total > MAX_ROWS {
             return Err(format!(
                 "{} rows or more asked for in all; at most {MAX_ROWS}",
                 total
             ));
         }
-        parts.push((a, s, n));
+        parts.push((a, b, n));
     }
     let mut out = Vec::with_capacity(total);
-    for (a, s, n) in parts {
+    for (a, b, n) in parts {
         for i in 0..=n {
-            out.push(a + s * i as f64);
+            out.push(crate::range::value(a, b, n, i));
         }
     }
     Ok(out)
@@ -564,6 +559,8 @@ mod tests {
         assert_eq!(parse_list("1:2:0.5").unwrap(), vec![1.0, 1.5, 2.0]);
         assert!(parse_list("abc").is_err());
         assert!(parse_list("1:2:0").is_err());
+        assert_eq!(parse_list("0:1@3").unwrap(), vec![0.0, 0.5, 1.0]);
+        assert!(parse_list("0:1:0.3").is_err(), "a step that misses TO");
     }
 
     #[test]

@@ -22,7 +22,7 @@ fn children_peak_kb() -> i64 {
 fn sweep(steps: usize, format: &str) -> (i64, usize) {
     let out = Command::new(env!("CARGO_BIN_EXE_stationwise"))
         .args(["sweep", &sheet(), "--vary"])
-        .arg(format!("process.nozzle.cv=0.95:0.99:{steps}"))
+        .arg(format!("process.nozzle.cv=0.95:0.99@{}", steps + 1))
         .args(["--report", "summary.thrust_net", "--format", format])
         .stdout(Stdio::piped())
         .output()
@@ -61,7 +61,7 @@ fn a_sweep_with_failed_points_exits_2_and_counts_them() {
             "sweep",
             &sheet(),
             "--vary",
-            "process.compressor.efficiency=0.9:1.1:4",
+            "process.compressor.efficiency=0.9:1.1@5",
         ])
         .args(["--report", "summary.thrust_net", "--format", "csv"])
         .output()
@@ -74,4 +74,35 @@ fn a_sweep_with_failed_points_exits_2_and_counts_them() {
     let last = text.lines().last().unwrap();
     assert!(last.starts_with("1.10000,,"), "{last}");
     assert!(last.contains("above 1"), "{last}");
+}
+
+#[test]
+fn one_range_syntax_step_or_points_and_a_missed_step_is_refused() {
+    let run = |range: &str| {
+        Command::new(env!("CARGO_BIN_EXE_stationwise"))
+            .args(["sweep", &sheet(), "--vary"])
+            .arg(format!("process.compressor.pressure_ratio={range}"))
+            .args(["--report", "summary.thrust_net", "--format", "csv"])
+            .output()
+            .unwrap()
+    };
+    let rows = |range: &str| {
+        let out = run(range);
+        assert_eq!(out.status.code(), Some(0), "{range}: {out:?}");
+        String::from_utf8(out.stdout).unwrap().lines().count() - 1
+    };
+    // A step size, as `table --mach 0.5:3:0.5` reads it: 6 to 16 in steps of 1.
+    assert_eq!(rows("6:16:1"), 11);
+    // A count of points.
+    assert_eq!(rows("6:16@3"), 3);
+    // The old STEPS reading (1000 steps) is a step larger than the span:
+    // refused, with the points form as the hint.
+    let out = run("6:16:1000");
+    assert_eq!(out.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("@1001"), "{err}");
+    // A step that does not land on TO is refused, never rounded.
+    let out = run("6:16:3");
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("whole steps"));
 }

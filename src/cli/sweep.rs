@@ -14,14 +14,16 @@ use std::path::PathBuf;
 /// ht, s, wc, q, flow_function, gamma), `process.NAME.FIGURE`,
 /// `shaft.NAME.imbalance`, `summary.KEY` (thrust_net, tsfc, ...) or any
 /// given. `stationwise addresses FILE` lists every path of a workbook.
-/// FROM and TO take units ("1300 K:1600 K:6"); STEPS equal steps give
-/// STEPS + 1 rows.
+/// RANGE is FROM:TO:STEP (a step size, which must reach TO in whole steps)
+/// or FROM:TO@N (N points), both ends included, as in every command. FROM
+/// and TO take units ("1300 K:1600 K:50 K", "59 degF:100 degF@5"); a bare
+/// STEP is in FROM's unit.
 #[derive(Debug, clap::Args)]
 #[command(verbatim_doc_comment)]
 pub(super) struct Args {
     /// The workbook file.
     file: PathBuf,
-    /// The given to vary: PATH=FROM:TO:STEPS.
+    /// The given to vary: PATH=FROM:TO:STEP or PATH=FROM:TO@N.
     #[arg(long)]
     vary: String,
     /// Derived values to report, comma separated paths.
@@ -35,33 +37,59 @@ pub(super) struct Args {
     units: Units,
 }
 
+/// Most points one sweep may ask for.
+const MAX_POINTS: usize = 10_000_001;
+
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
     let (path, range) = a
         .vary
         .split_once('=')
-        .ok_or_else(|| Failure::bad("--vary: use PATH=FROM:TO:STEPS"))?;
+        .ok_or_else(|| Failure::bad("--vary: use PATH=FROM:TO:STEP or PATH=FROM:TO@N"))?;
     let path = path.trim();
     let q = engine
         .given_address(path)
         .map_err(|e| Failure::bad(format!("--vary: {e}")))?;
-    let parts: Vec<&str> = range.split(':').collect();
-    let [from, to, steps] = parts.as_slice() else {
-        return Err(Failure::bad("--vary: use PATH=FROM:TO:STEPS"));
+    let stated = |text: &str, what: &str| {
+        units::parse_stated(text, q, what, a.units.into()).map_err(Failure::bad)
     };
-    let from = units::parse_stated(from, q, "--vary FROM", a.units.into())
-        .map_err(Failure::bad)?
-        .si;
-    let to = units::parse_stated(to, q, "--vary TO", a.units.into())
-        .map_err(Failure::bad)?
-        .si;
-    let steps: usize = steps
-        .trim()
-        .parse()
-        .map_err(|_| Failure::bad(format!("--vary: STEPS \"{steps}\" is not a whole number")))?;
-    if steps > 10_000_000 {
-        return Err(Failure::bad("--vary: at most 10 000 000 steps"));
-    }
+    let bad = |e: String| Failure::bad(format!("--vary: {e}"));
+    let (from, to, steps) = match crate::range::split(range).map_err(bad)? {
+        crate::range::Spec::One(_) => {
+            return Err(Failure::bad(
+                "--vary: give a range, PATH=FROM:TO:STEP or PATH=FROM:TO@N",
+            ));
+        }
+        crate::range::Spec::Points(f, t, n) => {
+            let (f, t) = (stated(f, "--vary FROM")?.si, stated(t, "--vary TO")?.si);
+            if n > MAX_POINTS {
+                return Err(bad(format!("at most {MAX_POINTS} points")));
+            }
+            (f, t, n - 1)
+        }
+        crate::range::Spec::Step(f, t, st) => {
+            let from = stated(f, "--vary FROM")?;
+            let to = stated(t, "--vary TO")?.si;
+            // A step is a difference: a bare one is in FROM's unit (scale
+            // only, so 5 after 59 degF is 5 degF of difference).
+            let step = match st.trim().parse::<f64>() {
+                Ok(v) => v * from.unit.scale,
+                Err(_) => {
+                    let dq = if q == Quantity::Temperature {
+                        Quantity::TemperatureDifference
+                    } else {
+                        q
+                    };
+                    units::parse(st, dq, "--vary STEP")
+                        .map_err(Failure::bad)?
+                        .si
+                }
+            };
+            let n = crate::range::intervals(from.si, to, step, range.trim(), MAX_POINTS)
+                .map_err(bad)?;
+            (from.si, to, n)
+        }
+    };
     let report: Vec<String> = a
         .report
         .split(',')
@@ -103,7 +131,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         &engine,
         path,
         steps + 1,
-        |i| sweep::step_value(from, to, steps, i),
+        |i| crate::range::value(from, to, steps, i),
         &report,
         sweep::BATCH,
         |rows| -> Result<(), Failure> {
