@@ -53,9 +53,14 @@ fn comment_places(text: &str) -> Vec<(String, String)> {
 fn the_sheet_has_comments_of_every_kind() {
     let t = sheet();
     let places = comment_places(&t);
-    assert_eq!(places.len(), 6, "{places:?}");
+    assert_eq!(places.len(), 10, "{places:?}");
     assert!(t.contains("name: \"3\",  // compressor delivery"));
     assert!(t.contains("/* The compressor"));
+    // Before and after a field, before a process, after a list item.
+    assert!(t.contains("pressure_ratio: \"10\",  // design point"));
+    assert!(t.contains("// isentropic efficiency, total to total\n"));
+    assert!(t.contains("// Fuel goes in here.\n        (\n            name: \"combustor\""));
+    assert!(t.contains("),  // the last process"));
     assert!(t.trim_end().ends_with("// last line of the file"));
 }
 
@@ -94,7 +99,7 @@ fn a_renamed_station_keeps_its_comment() {
         text.contains("name: \"30\",  // compressor delivery"),
         "{text}"
     );
-    assert_eq!(comment_places(&text).len(), 6);
+    assert_eq!(comment_places(&text).len(), 10);
 }
 
 #[test]

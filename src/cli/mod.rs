@@ -13,12 +13,18 @@ mod diff;
 pub mod eval;
 pub mod explain;
 mod files;
+mod install;
 mod reduce;
 mod sweep;
 mod table;
 
 use clap::{Parser, Subcommand, ValueEnum};
 use std::process::ExitCode;
+
+/// The caution every front end carries.
+pub const CAUTION: &str = "Results are engineering estimates from the models and data named in the \
+README; they are not a substitute for the facility's procedures, local codes and licensed \
+engineering review. Pressure, fuel, hot gas and rotating machinery can hurt people.";
 
 /// A terminal workbook for compressible-flow stations.
 ///
@@ -28,7 +34,7 @@ use std::process::ExitCode;
 /// Without a command, opens the terminal workbook: `stationwise FILE`, or
 /// `stationwise` alone for recent files and the demo templates.
 #[derive(Debug, Parser)]
-#[command(name = "stationwise", version, about, long_about = None, args_conflicts_with_subcommands = true)]
+#[command(name = "stationwise", version, about, long_about = None, args_conflicts_with_subcommands = true, after_help = CAUTION)]
 pub struct Cli {
     #[command(subcommand)]
     command: Option<Command>,
@@ -76,6 +82,10 @@ enum Command {
     /// Every path a workbook offers (givens and derived values) with its
     /// unit and current value.
     Addresses(addresses::Args),
+    /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
+    Completions(install::CompletionArgs),
+    /// Write man pages into a directory.
+    Manual(install::ManualArgs),
 }
 
 /// Output format shared by the commands that print rows.
@@ -193,6 +203,8 @@ pub fn run() -> ExitCode {
         Command::Reduce(a) => reduce::run(a),
         Command::Uncertainty(a) => reduce::uncertainty(a),
         Command::Addresses(a) => addresses::run(a),
+        Command::Completions(a) => install::completions(a),
+        Command::Manual(a) => install::manual(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

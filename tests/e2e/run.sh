@@ -14,6 +14,9 @@
 #    edits (saved, new and untitled workbooks; with and without a SIGHUP);
 #    the program must exit within 2 s and the next start must offer the work.
 #
+# 4. Comments: the same edit on a commented copy of the turbojet; the saved
+#    file differs from the original in the edited line only.
+#
 # Uses python3 and tui-drive / ttykit.py kept beside this script (copies of
 # the project's shared tools, so CI does not depend on them). Settings and
 # the recent-files list go to a temporary folder, not the user's.
@@ -226,6 +229,26 @@ for case in saved new untitled; do
     fi
   done
 done
+
+# ------------------------------------------------------------------ case 4
+# Comments survive an edit and a save from the terminal: the commented copy
+# of the turbojet, the same edit as case 1; the saved file must differ from
+# the original in the edited line only, every comment in its place.
+mkdir -p "$TMP/comments"
+cp "$ROOT/tests/data/commented_turbojet.ron" "$TMP/comments/turbojet.ron"
+if "${DRIVE[@]}" --keys "$TO_PR Enter ctrl-u 1 2 Enter wait:recomputed ctrl-s wait:saved q" \
+  --out "$TMP/comments/screen.txt" -- "$BIN" "$TMP/comments/turbojet.ron" 2>"$TMP/comments/status.txt"; then
+  changed=$(diff "$ROOT/tests/data/commented_turbojet.ron" "$TMP/comments/turbojet.ron" | grep -c '^[<>]' || true)
+  removed=$(diff "$ROOT/tests/data/commented_turbojet.ron" "$TMP/comments/turbojet.ron" | grep '^<' || true)
+  added=$(diff "$ROOT/tests/data/commented_turbojet.ron" "$TMP/comments/turbojet.ron" | grep '^>' || true)
+  if [ "$changed" -eq 2 ] && [[ "$removed" == *'pressure_ratio: "10"'* ]] && [[ "$added" == *'pressure_ratio: "12"'* ]]; then
+    pass "comments: the save changed the edited line only ($(grep -c '//' "$TMP/comments/turbojet.ron") comment lines kept)"
+  else
+    fail "comments: the save changed more than the edited line: $(diff "$ROOT/tests/data/commented_turbojet.ron" "$TMP/comments/turbojet.ron" | head -20)"
+  fi
+else
+  fail "comments: tui-drive failed: $(cat "$TMP/comments/status.txt")"
+fi
 
 if [ "$failures" -ne 0 ]; then
   echo "e2e: $failures failed" >&2
