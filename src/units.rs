@@ -48,6 +48,9 @@ pub enum Quantity {
     Pressure,
     /// Mass flow rate; SI kg/s.
     MassFlow,
+    /// Fuel mass flow rate; SI kg/s, read in any mass-flow unit, shown in
+    /// lbm/h (pph) in US customary units as the trade does.
+    FuelFlow,
     /// Speed of a gas or a vehicle; SI m/s.
     Velocity,
     /// Area; SI m2.
@@ -82,11 +85,12 @@ pub enum Quantity {
 
 impl Quantity {
     /// Every quantity, in declaration order.
-    pub const ALL: [Quantity; 19] = [
+    pub const ALL: [Quantity; 20] = [
         Quantity::Temperature,
         Quantity::TemperatureDifference,
         Quantity::Pressure,
         Quantity::MassFlow,
+        Quantity::FuelFlow,
         Quantity::Velocity,
         Quantity::Area,
         Quantity::Length,
@@ -111,6 +115,7 @@ impl Quantity {
             Quantity::TemperatureDifference => "temperature difference",
             Quantity::Pressure => "pressure",
             Quantity::MassFlow => "mass flow",
+            Quantity::FuelFlow => "fuel flow",
             Quantity::Velocity => "velocity",
             Quantity::Area => "area",
             Quantity::Length => "length",
@@ -146,7 +151,7 @@ impl Quantity {
             Quantity::Temperature => &T_K,
             Quantity::TemperatureDifference => &DT_K,
             Quantity::Pressure => &PA,
-            Quantity::MassFlow => &KG_S,
+            Quantity::MassFlow | Quantity::FuelFlow => &KG_S,
             Quantity::Velocity => &M_S,
             Quantity::Area => &M2,
             Quantity::Length => &M,
@@ -162,6 +167,15 @@ impl Quantity {
             Quantity::Time => &S,
             Quantity::ThrustSpecificFuelConsumption => &KG_N_S,
             Quantity::SpecificThrust => &N_S_KG,
+        }
+    }
+
+    /// The quantity whose units this one is read in (a fuel flow is a
+    /// mass flow).
+    pub fn unit_kind(self) -> Quantity {
+        match self {
+            Quantity::FuelFlow => Quantity::MassFlow,
+            other => other,
         }
     }
 
@@ -286,12 +300,17 @@ static T_K: Unit = Unit::new("K", Q::Temperature, 1.0, &["kelvin"]);
 static T_DEGC: Unit = Unit::new("degC", Q::Temperature, 1.0, &["deg C", "°C"]).with_offset(273.15);
 static T_DEGF: Unit =
     Unit::new("degF", Q::Temperature, RANKINE, &["deg F", "°F"]).with_offset(459.67 * RANKINE);
-static T_DEGR: Unit = Unit::new("degR", Q::Temperature, RANKINE, &["deg R", "°R"]);
+static T_DEGR: Unit = Unit::new("degR", Q::Temperature, RANKINE, &["deg R", "°R", "R"]);
 
 static DT_K: Unit = Unit::new("K", Q::TemperatureDifference, 1.0, &["kelvin"]);
 static DT_DEGC: Unit = Unit::new("degC", Q::TemperatureDifference, 1.0, &["deg C", "°C"]);
 static DT_DEGF: Unit = Unit::new("degF", Q::TemperatureDifference, RANKINE, &["deg F", "°F"]);
-static DT_DEGR: Unit = Unit::new("degR", Q::TemperatureDifference, RANKINE, &["deg R", "°R"]);
+static DT_DEGR: Unit = Unit::new(
+    "degR",
+    Q::TemperatureDifference,
+    RANKINE,
+    &["deg R", "°R", "R"],
+);
 
 static PA: Unit = Unit::new("Pa", Q::Pressure, 1.0, &[]);
 static KPA: Unit = Unit::new("kPa", Q::Pressure, 1.0e3, &[]);
@@ -706,7 +725,7 @@ pub fn units_for(quantity: Quantity) -> impl Iterator<Item = &'static Unit> {
     UNITS
         .iter()
         .copied()
-        .filter(move |u| u.quantity == quantity && !u.gauge)
+        .filter(move |u| u.quantity == quantity.unit_kind() && !u.gauge)
 }
 
 /// Every unit known, including gauge units.
@@ -758,7 +777,7 @@ fn normalize_symbol(text: &str) -> String {
 /// units when `scope` is `None`: an exact spelling first, then any letter
 /// case for units whose case carries no meaning.
 fn find_in(scope: Option<Quantity>, symbol: &str) -> Option<&'static Unit> {
-    let in_scope = move |u: &&'static Unit| scope.is_none_or(|q| u.quantity == q);
+    let in_scope = move |u: &&'static Unit| scope.is_none_or(|q| u.quantity == q.unit_kind());
     if let Some(u) = all_units()
         .filter(in_scope)
         .find(|u| u.spellings().any(|s| s == symbol))
@@ -807,7 +826,7 @@ fn suggest(symbol: &str, quantity: Quantity) -> Option<&'static str> {
     let lower = symbol.to_lowercase();
     let matches = |u: &&'static Unit| u.spellings().any(|s| s.to_lowercase() == lower);
     all_units()
-        .filter(|u| u.quantity == quantity)
+        .filter(|u| u.quantity == quantity.unit_kind())
         .find(matches)
         .or_else(|| all_units().find(matches))
         .map(|u| u.symbol)
@@ -954,7 +973,7 @@ pub fn parse(text: &str, quantity: Quantity, field: &str) -> Result<Parsed, Unit
             suggestion: suggest(rest, quantity),
         })?
     };
-    if unit.quantity != quantity {
+    if unit.quantity != quantity.unit_kind() {
         return Err(UnitError::WrongQuantity {
             field: field_s(),
             text: text_s(),
@@ -1015,6 +1034,9 @@ pub fn display_unit(quantity: Quantity, system: UnitSystem) -> &'static Unit {
         (Q::Pressure, Us) => &PSIA,
         (Q::MassFlow, Si) => &KG_S,
         (Q::MassFlow, Us) => &LBM_S,
+        (Q::FuelFlow, Si) => &KG_S,
+        // The trade's pounds per hour (pph).
+        (Q::FuelFlow, Us) => &LBM_H,
         (Q::Velocity, Si) => &M_S,
         (Q::Velocity, Us) => &FT_S,
         (Q::Area, Si) => &M2,
@@ -1578,7 +1600,7 @@ mod tests {
 
     #[test]
     fn bare_temperature_letters_get_a_hint() {
-        for (text, hint) in [("15 C", "degC"), ("59 F", "degF"), ("518 R", "degR")] {
+        for (text, hint) in [("15 C", "degC"), ("59 F", "degF")] {
             match err(text, Q::Temperature, "t") {
                 UnitError::UnknownUnit {
                     suggestion, unit, ..
@@ -1589,12 +1611,39 @@ mod tests {
                 other => panic!("{text}: {other:?}"),
             }
         }
+        // R alone is Rankine: no other temperature unit is written R
+        // (518.67 R is 288.15 K, the Rankine degree being 5/9 K).
+        assert_relative_eq!(si("518.67 R", Q::Temperature), 288.15, max_relative = 1e-12);
+        assert_relative_eq!(
+            si("9 R", Q::TemperatureDifference),
+            5.0,
+            max_relative = 1e-12
+        );
         let e = err("12 furlongs", Q::Length, "duct length");
         assert_eq!(
             e.to_string(),
             "duct length \"12 furlongs\": \"furlongs\" is not a known unit; a length accepts \
              m, cm, mm, in, ft, km (a bare number is m)"
         );
+    }
+
+    #[test]
+    fn us_fuel_flow_is_pounds_per_hour_and_tsfc_per_pound_force_hour() {
+        // The pound is 0.45359237 kg and the pound-force 4.4482216152605 N
+        // by definition (NIST SP 811): 1 kg/s = 3600 / 0.45359237 lbm/h.
+        assert_eq!(format(1.0, Q::FuelFlow, UnitSystem::Us), "7936.6 lbm/h");
+        assert_eq!(format(1.0, Q::MassFlow, UnitSystem::Us), "2.2046 lbm/s");
+        // 1 kg/(N s) = 3600 * 4.4482216152605 / 0.45359237 lbm/(lbf h).
+        let per = 3600.0 * 4.4482216152605 / 0.45359237;
+        let u = display_unit(Q::ThrustSpecificFuelConsumption, UnitSystem::Us);
+        assert_relative_eq!(from_si(27.691e-6, u), 27.691e-6 * per, max_relative = 1e-12);
+        // A fuel flow reads any mass-flow unit, pph included.
+        assert_relative_eq!(
+            si("3600 pph", Q::FuelFlow),
+            0.45359237,
+            max_relative = 1e-15
+        );
+        assert!(parse("3 kN", Q::FuelFlow, "fuel").is_err());
     }
 
     #[test]
@@ -1627,8 +1676,8 @@ mod tests {
             assert_eq!(si_unit.unwrap().symbol, q.si_symbol(), "{q}");
             let d_si = display_unit(q, UnitSystem::Si);
             let d_us = display_unit(q, UnitSystem::Us);
-            assert_eq!(d_si.quantity, q);
-            assert_eq!(d_us.quantity, q);
+            assert_eq!(d_si.quantity, q.unit_kind());
+            assert_eq!(d_us.quantity, q.unit_kind());
             assert!(!d_si.gauge && !d_us.gauge);
         }
     }

@@ -195,7 +195,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
     ("thrust_gross", "gross thrust", Quantity::Force),
     ("ram_drag", "ram drag", Quantity::Force),
     ("thrust_net", "net thrust", Quantity::Force),
-    ("fuel", "fuel flow", Quantity::MassFlow),
+    ("fuel", "fuel flow", Quantity::FuelFlow),
     ("tsfc", "TSFC", Quantity::ThrustSpecificFuelConsumption),
     (
         "specific_thrust",
@@ -207,7 +207,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
     ("eta_overall", "overall efficiency", Quantity::Ratio),
     ("air_flow", "air flow", Quantity::MassFlow),
     ("thrust_corrected", "corrected net thrust", Quantity::Force),
-    ("fuel_corrected", "corrected fuel flow", Quantity::MassFlow),
+    ("fuel_corrected", "corrected fuel flow", Quantity::FuelFlow),
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
@@ -224,7 +224,7 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 37] = [
     ("recovery", "pt recovery", Quantity::Ratio),
     ("loss", "pt loss", Quantity::Ratio),
     ("friction_4fl_d", "4fL/D", Quantity::Ratio),
-    ("fuel_flow", "fuel flow", Quantity::MassFlow),
+    ("fuel_flow", "fuel flow", Quantity::FuelFlow),
     ("far_added", "fuel-air ratio added", Quantity::Ratio),
     ("exit_tt", "exit Tt", Quantity::Temperature),
     ("efficiency", "combustion efficiency", Quantity::Ratio),

@@ -27,7 +27,7 @@ impl ProcessKind for Combustor {
         } = this;
         match mode {
             Burn::ExitTemperature(t) => f("exit_tt", Quantity::Temperature, t),
-            Burn::FuelFlow(w) | Burn::Measured(w) => f("fuel_flow", Quantity::MassFlow, w),
+            Burn::FuelFlow(w) | Burn::Measured(w) => f("fuel_flow", Quantity::FuelFlow, w),
         }
         f("pressure_loss", Quantity::Ratio, pressure_loss);
         f("efficiency", Quantity::Ratio, efficiency);
