@@ -952,3 +952,41 @@ fn rayleigh_heating_of_a_stream_at_rest_is_a_problem_in_words_not_nan() {
     );
     assert!(p.iter().all(|p| !p.message.contains("NaN")), "{p:?}");
 }
+
+#[test]
+fn every_given_of_every_demo_is_reached_through_its_handle() {
+    // A handle keeps the part of the workbook and the place within it; it
+    // must reach the very given its path names (the workbook's own value,
+    // read through `givens()`), and a set through it must equal a set by path.
+    for name in [
+        "turbojet",
+        "turbofan",
+        "ramjet",
+        "tunnel",
+        "combustor-rig",
+        "compressor-rig",
+        "compressor-speedline",
+    ] {
+        let text =
+            std::fs::read_to_string(format!("{}/sheets/{name}.ron", env!("CARGO_MANIFEST_DIR")))
+                .unwrap();
+        let mut e = engine_of(&text);
+        let givens = e.book().givens();
+        assert!(givens.len() > 5, "{name}");
+        for (path, _, _, si) in &givens {
+            let h = e
+                .handle(path)
+                .unwrap_or_else(|err| panic!("{name} {path}: {err}"));
+            assert_eq!(e.given_by(&h), Some(*si), "{name} {path}");
+        }
+        // A changed value through a handle lands where the path says.
+        let (path, _, _, si) = givens.last().unwrap().clone();
+        let h = e.handle(&path).unwrap();
+        let v = if si == 0.0 { 1e-3 } else { si * 1.001 };
+        if e.set_by(&h, v).is_ok() {
+            let now = e.book().givens();
+            let got = now.iter().find(|g| g.0 == path).unwrap().3;
+            assert_eq!(got, v, "{name} {path}");
+        }
+    }
+}

@@ -828,6 +828,36 @@ pub enum BookError {
 /// The walk over every given of a workbook, written once and expanded for
 /// shared (`visit_givens_ref`) and exclusive (`visit_givens`) access, as
 /// `iter` and `iter_mut` are.
+/// A part of a workbook whose givens can be walked on their own.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Part {
+    /// Everything.
+    All,
+    /// The ambient block and the gas settings.
+    Ambient,
+    /// One station, by index.
+    Station(usize),
+    /// One process, by index.
+    Process(usize),
+    /// One shaft, by index.
+    Shaft(usize),
+}
+
+impl Part {
+    fn ambient(self) -> bool {
+        matches!(self, Part::All | Part::Ambient)
+    }
+    fn station(self, i: usize) -> bool {
+        matches!(self, Part::All) || self == Part::Station(i)
+    }
+    fn process(self, i: usize) -> bool {
+        matches!(self, Part::All) || self == Part::Process(i)
+    }
+    fn shaft(self, i: usize) -> bool {
+        matches!(self, Part::All) || self == Part::Shaft(i)
+    }
+}
+
 macro_rules! walk_givens {
     (@kind $p:ident, mut) => {
         |f: &mut dyn FnMut(&'static str, Quantity, &mut Given)| {
@@ -837,9 +867,11 @@ macro_rules! walk_givens {
     (@kind $p:ident,) => {
         |f: &mut dyn FnMut(&'static str, Quantity, &Given)| crate::kinds::of(&$p.kind).visit_givens(f)
     };
-    ($book:ident, $g:ident, $($m:tt)*) => {{
+    ($book:ident, $g:ident, $part:expr, $($m:tt)*) => {{
         let book = $book;
         let mut g = $g;
+        let part: Part = $part;
+        if part.ambient() {
         match & $($m)* book.ambient.condition {
             Condition::Standard {
                 altitude, offset, ..
@@ -906,7 +938,11 @@ macro_rules! walk_givens {
                 g("gas", "", "hot_r", Quantity::SpecificHeat, x);
             }
         }
-        for s in & $($m)* book.stations {
+        }
+        for (at, s) in (& $($m)* book.stations).into_iter().enumerate() {
+            if !part.station(at) {
+                continue;
+            }
             let name = s.name.as_str();
             if let Some(x) = & $($m)* s.tt {
                 g("station", name, "tt", Quantity::Temperature, x);
@@ -922,13 +958,19 @@ macro_rules! walk_givens {
                 None => {}
             }
         }
-        for p in & $($m)* book.processes {
+        for (at, p) in (& $($m)* book.processes).into_iter().enumerate() {
+            if !part.process(at) {
+                continue;
+            }
             let name = p.name.as_str();
             walk_givens!(@kind p, $($m)*)(&mut |field: &'static str, quantity: Quantity, given| {
                 g("process", name, field, quantity, given)
             });
         }
-        for s in & $($m)* book.shafts {
+        for (at, s) in (& $($m)* book.shafts).into_iter().enumerate() {
+            if !part.shaft(at) {
+                continue;
+            }
             let name = s.name.as_str();
             g(
                 "shaft",
@@ -961,7 +1003,41 @@ impl Workbook {
                 })
             };
         let book = self;
-        walk_givens!(book, g, mut);
+        walk_givens!(book, g, Part::All, mut);
+    }
+
+    /// Walk the givens of one part of the workbook only (the ambient block
+    /// and gas, one station, one process or one shaft), in the order
+    /// [`Workbook::visit_givens`] meets them: what a handle to one given
+    /// needs, without walking the rest.
+    pub fn visit_givens_in(&mut self, part: Part, f: &mut dyn FnMut(GivenField<'_>)) {
+        let g =
+            |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &mut Given| {
+                f(GivenField {
+                    scope,
+                    name,
+                    key,
+                    quantity,
+                    given,
+                })
+            };
+        let book = self;
+        walk_givens!(book, g, part, mut);
+    }
+
+    /// As [`Workbook::visit_givens_in`], without changing any.
+    pub fn visit_givens_ref_in(&self, part: Part, f: &mut dyn FnMut(GivenRef<'_>)) {
+        let g = |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &Given| {
+            f(GivenRef {
+                scope,
+                name,
+                key,
+                quantity,
+                given,
+            })
+        };
+        let book = self;
+        walk_givens!(book, g, part,);
     }
 
     /// Walk every given without changing any (no copy of the workbook).
@@ -976,7 +1052,7 @@ impl Workbook {
             })
         };
         let book = self;
-        walk_givens!(book, g,);
+        walk_givens!(book, g, Part::All,);
     }
 
     /// Parse every given with its field's quantity. All errors are

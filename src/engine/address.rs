@@ -375,6 +375,9 @@ pub fn quantity(engine: &Engine, path: &str) -> Option<Quantity> {
 /// Made by [`Engine::handle`]; valid until the workbook's structure changes.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GivenHandle {
+    /// The part of the workbook holding the given, and its place among
+    /// that part's givens: a set walks that part only.
+    part: crate::book::Part,
     ordinal: usize,
     touch: Touch,
     path: String,
@@ -426,9 +429,30 @@ impl Engine {
             what: "given",
             name: path.to_string(),
         };
+        use crate::book::Part;
+        let mut part = None;
+        self.book.visit_givens_ref(&mut |f| {
+            if part.is_none() && f.is(path) {
+                part = Some(match f.scope {
+                    "station" => self
+                        .graph
+                        .station_index
+                        .get(f.name)
+                        .map(|&i| Part::Station(i)),
+                    "process" => self
+                        .graph
+                        .process_index
+                        .get(f.name)
+                        .map(|&i| Part::Process(i)),
+                    "shaft" => self.graph.shaft_index.get(f.name).map(|&i| Part::Shaft(i)),
+                    _ => Some(Part::Ambient),
+                });
+            }
+        });
+        let part = part.flatten().ok_or_else(unknown)?;
         let mut ordinal = None;
         let mut n = 0;
-        self.book.visit_givens_ref(&mut |f| {
+        self.book.visit_givens_ref_in(part, &mut |f| {
             if ordinal.is_none() && f.is(path) {
                 ordinal = Some(n);
             }
@@ -458,6 +482,7 @@ impl Engine {
             Scope::Summary => Touch::Nothing,
         };
         Ok(GivenHandle {
+            part,
             ordinal,
             touch,
             path: path.to_string(),
@@ -470,7 +495,7 @@ impl Engine {
     pub fn set_by(&mut self, h: &GivenHandle, si: f64) -> Result<(), BookError> {
         let mut found = None;
         let mut n = 0;
-        self.book.visit_givens(&mut |f| {
+        self.book.visit_givens_in(h.part, &mut |f| {
             if n == h.ordinal {
                 let r = f.check_si(si);
                 if r.is_ok() {
@@ -499,7 +524,7 @@ impl Engine {
     pub fn given_by(&self, h: &GivenHandle) -> Option<f64> {
         let mut out = None;
         let mut n = 0;
-        self.book.visit_givens_ref(&mut |f| {
+        self.book.visit_givens_ref_in(h.part, &mut |f| {
             if n == h.ordinal {
                 out = Some(f.given.si());
             }

@@ -103,6 +103,29 @@ pub fn far_for_temperature(
             why: "a burner's exit total temperature must exceed its inlet total temperature",
         });
     }
+    if let GasModel::Thermal = model {
+        // The products' enthalpy per kg of air is linear in the fuel burnt:
+        // the energy balance solves in one step from the species'
+        // polynomials, no mixture built per trial.
+        let (e_in, _) = inlet.sensible_h_per_kg_air(tt_in)?;
+        let at_out = Composition {
+            fuel: burner.fuel,
+            ..*inlet
+        };
+        let (base, per_far) = at_out.sensible_h_per_kg_air(tt_out)?;
+        let df = (e_in - base) / (per_far - burner.efficiency * burner.lhv);
+        if !(df.is_finite() && df > 0.0) {
+            return Err(FlowError::NoSolution {
+                what: "fuel-air ratio for the exit temperature (the fuel cannot reach it)",
+            });
+        }
+        let composition = inlet.burnt(inlet.far + df, burner.fuel)?;
+        return Ok(Burn {
+            composition,
+            tt_out,
+            far_added: df,
+        });
+    }
     let e_in = sensible_energy(model, inlet, tt_in)?;
     let residual = |df: f64| -> Result<f64, FlowError> {
         let c = Composition {

@@ -63,7 +63,7 @@ impl Polynomial {
         a[0] * ti * ti + a[1] * ti + a[2] + t * (a[3] + t * (a[4] + t * (a[5] + t * a[6])))
     }
     #[inline]
-    fn h_of(a: &[f64; 9], t: f64, ln_t: f64) -> f64 {
+    pub(crate) fn h_of(a: &[f64; 9], t: f64, ln_t: f64) -> f64 {
         -a[0] / t
             + a[1] * ln_t
             + t * (a[2] + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))))

@@ -271,6 +271,45 @@ impl Composition {
         b
     }
 
+    /// Sensible enthalpy of the thermally perfect mixture per kg of dry
+    /// air at `t`, J/kg, and its rate with the fuel-air ratio (the mixture
+    /// is linear in the fuel burnt, so `base + dfar * per_far` is exact for
+    /// another ratio of the same fuel): summed over the species' own
+    /// polynomials, without building a mixture. Equals
+    /// `mass_per_kg_air() * mixture().h(t) - h(T_REFERENCE)` to rounding.
+    pub fn sensible_h_per_kg_air(&self, t: f64) -> Result<(f64, f64), GasError> {
+        let n = self.builder();
+        let mf = self.fuel.molar_mass();
+        let mut dn = [0.0; 5];
+        dn[index(Species::CO2)] = 1.0 / mf;
+        dn[index(Species::H2O)] = self.fuel.hc / 2.0 / mf;
+        dn[index(Species::O2)] = -(1.0 + self.fuel.hc / 4.0) / mf;
+        let t_ref = super::T_REFERENCE;
+        let (ln_t, ln_ref) = (t.ln(), t_ref.ln());
+        let (mut base, mut per_far) = (0.0, 0.0);
+        for s in Species::ALL {
+            let (ni, di) = (n.kmol[index(s)], dn[index(s)]);
+            if ni == 0.0 && di == 0.0 {
+                continue;
+            }
+            let d = s.data();
+            if !(t >= d.t_min && t <= d.t_max) {
+                return Err(GasError::OutOfRange {
+                    t,
+                    min: d.t_min,
+                    max: d.t_max,
+                    model: "thermally perfect",
+                });
+            }
+            let at = |x: f64| if x <= d.t_mid { &d.low } else { &d.high };
+            let h = R_UNIVERSAL
+                * (Polynomial::h_of(at(t), t, ln_t) - Polynomial::h_of(at(t_ref), t_ref, ln_ref));
+            base += ni * h;
+            per_far += di * h;
+        }
+        Ok((base, per_far))
+    }
+
     /// The thermally perfect mixture of this composition. Call [`check`]
     /// first for user input; a rich ratio here gives negative oxygen.
     ///
@@ -290,6 +329,23 @@ mod tests {
     use super::*;
     use crate::gas::Thermo;
     use approx::assert_relative_eq;
+
+    #[test]
+    fn sensible_enthalpy_per_kg_air_is_the_mixtures_and_linear_in_far() {
+        // Independent relation: the same sum through a built mixture.
+        let c = Composition::dry_air().burnt(0.012, Fuel::KEROSENE).unwrap();
+        for t in [250.0, 800.0, 1450.0, 2100.0] {
+            let (base, per) = c.sensible_h_per_kg_air(t).unwrap();
+            let m = c.mixture();
+            let want = c.mass_per_kg_air() * (m.h(t).unwrap() - m.h_reference());
+            assert_relative_eq!(base, want, max_relative = 1e-12);
+            let c2 = Composition::dry_air().burnt(0.03, Fuel::KEROSENE).unwrap();
+            let m2 = c2.mixture();
+            let want2 = c2.mass_per_kg_air() * (m2.h(t).unwrap() - m2.h_reference());
+            assert_relative_eq!(base + 0.018 * per, want2, max_relative = 1e-12);
+        }
+        assert!(c.sensible_h_per_kg_air(100.0).is_err());
+    }
 
     #[test]
     fn dry_air_gas_constant_matches_standard_atmosphere() {
