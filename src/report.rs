@@ -177,6 +177,13 @@ pub fn sig(v: f64, sig: usize) -> String {
     if !(-4..=9).contains(&mag) {
         return format!("{:.*e}", sig.saturating_sub(1), v);
     }
+    // Up to 12 figures the digits come from one scaled integer (a few
+    // dozen instructions; a sweep prints millions of cells). A value within
+    // about 1e-16 of a rounding tie may round the other way from an exact
+    // decimal conversion; beyond 12 figures the exact conversion is used.
+    if sig <= 12 {
+        return fast_sig(v, sig, mag);
+    }
     let decimals = (sig as i32 - 1 - mag).max(0) as usize;
     // Whole numbers longer than `sig` digits are rounded too (1974632.3 to
     // six figures is 1974630), so no printed digit claims more than asked.
@@ -192,6 +199,45 @@ pub fn sig(v: f64, sig: usize) -> String {
     } else {
         s
     }
+}
+
+/// [`sig`] for `sig <= 12` and a decade `mag` in -4..=9, through one
+/// rounded integer of `sig` digits.
+fn fast_sig(v: f64, sig: usize, mag: i32) -> String {
+    let d = sig as i32 - 1 - mag;
+    let a = v.abs();
+    // Exact powers of ten up to 1e22: one rounding in the product.
+    let m = if d >= 0 {
+        (a * 10f64.powi(d)).round()
+    } else {
+        (a / 10f64.powi(-d)).round()
+    } as u64;
+    let mut out = String::with_capacity(sig + 8);
+    if v < 0.0 && m != 0 {
+        out.push('-');
+    }
+    let digits = m.to_string();
+    if d <= 0 {
+        out.push_str(&digits);
+        for _ in 0..(-d) {
+            out.push('0');
+        }
+    } else {
+        let d = d as usize;
+        if digits.len() <= d {
+            out.push_str("0.");
+            for _ in 0..(d - digits.len()) {
+                out.push('0');
+            }
+            out.push_str(&digits);
+        } else {
+            let (whole, frac) = digits.split_at(digits.len() - d);
+            out.push_str(whole);
+            out.push('.');
+            out.push_str(frac);
+        }
+    }
+    out
 }
 
 fn text_cell(c: &Cell) -> String {
@@ -439,6 +485,41 @@ mod tests {
         assert_eq!(sig(0.9999999999999998, 6), "1.00000");
         assert_eq!(sig(99.99996, 6), "100.000");
         assert_eq!(sig(0.99999, 6), "0.999990");
+    }
+
+    #[test]
+    fn fast_figures_agree_with_exact_decimal_conversion() {
+        // Independent: the standard library's exact decimal formatting.
+        let mut x = 0.000123456789f64;
+        let mut n = 0;
+        while x < 9.9e9 {
+            for v in [x, -x, x * 1.000000001, 0.5 * x] {
+                for digits in [1, 3, 6, 10, 15] {
+                    let ours = sig(v, digits);
+                    let back: f64 = ours.parse().unwrap();
+                    // Same value to the figures asked, and the exact form.
+                    let mut mag = v.abs().log10().floor() as i32;
+                    let k = digits as i32 - 1 - mag;
+                    if (v.abs() * 10f64.powi(k)).round() >= 10f64.powi(digits as i32) {
+                        mag += 1;
+                    }
+                    let dec = (digits as i32 - 1 - mag).max(0) as usize;
+                    if (-4..=9).contains(&mag) && mag < digits as i32 && digits < 15 {
+                        let exact = format!("{v:.dec$}");
+                        let exact = exact.trim_start_matches('-');
+                        assert_eq!(ours.trim_start_matches('-'), exact, "{v} to {digits}");
+                    }
+                    let unit = 10f64.powi(mag + 1 - digits as i32);
+                    assert!(
+                        (back - v).abs() <= 0.51 * unit + 4.0 * f64::EPSILON * v.abs(),
+                        "{v} {digits}: {ours}"
+                    );
+                    n += 1;
+                }
+            }
+            x *= 1.37;
+        }
+        assert!(n > 1000);
     }
 
     #[test]
