@@ -77,11 +77,21 @@ pub fn compress<G: Thermo + ?Sized>(
     let eta = eff.value()?;
     let s1 = gas.state(tt_in)?;
     let r = gas.r();
-    let rl = r * pr.ln();
-    let t_ideal = invert_phi(gas, s1.phi + rl, tt_in * pr.powf(r / s1.cp))?;
+    let ln_pr = pr.ln();
+    let rl = r * ln_pr;
+    // Guess through cp at the mean temperature of a first estimate.
+    let t_a = tt_in * (ln_pr * r / s1.cp).exp();
+    let cp_m = gas.cp(0.5 * (tt_in + t_a)).unwrap_or(s1.cp);
+    let t_ideal = invert_phi(gas, s1.phi + rl, tt_in * (ln_pr * r / cp_m).exp())?;
     let h_ideal = gas.h(t_ideal)?;
+    // First guesses through the mean cp of the ideal process (a secant):
+    // within a fraction of a kelvin, so Newton needs one or two steps.
     let tt_out = match eff {
-        Efficiency::Isentropic(_) => invert_h(gas, s1.h + (h_ideal - s1.h) / eta, t_ideal)?,
+        Efficiency::Isentropic(_) => invert_h(
+            gas,
+            s1.h + (h_ideal - s1.h) / eta,
+            tt_in + (t_ideal - tt_in) / eta,
+        )?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi + rl / eta, t_ideal)?,
     };
     stage(gas, tt_in, tt_out, pr, Some(t_ideal), true)
@@ -110,11 +120,18 @@ pub fn expand<G: Thermo + ?Sized>(
     let eta = eff.value()?;
     let s1 = gas.state(tt_in)?;
     let r = gas.r();
-    let rl = r * pr.ln();
-    let t_ideal = invert_phi(gas, s1.phi - rl, tt_in * pr.powf(-r / s1.cp))?;
+    let ln_pr = pr.ln();
+    let rl = r * ln_pr;
+    let t_a = tt_in * (-ln_pr * r / s1.cp).exp();
+    let cp_m = gas.cp(0.5 * (tt_in + t_a)).unwrap_or(s1.cp);
+    let t_ideal = invert_phi(gas, s1.phi - rl, tt_in * (-ln_pr * r / cp_m).exp())?;
     let h_ideal = gas.h(t_ideal)?;
     let tt_out = match eff {
-        Efficiency::Isentropic(_) => invert_h(gas, s1.h - eta * (s1.h - h_ideal), t_ideal)?,
+        Efficiency::Isentropic(_) => invert_h(
+            gas,
+            s1.h - eta * (s1.h - h_ideal),
+            tt_in - eta * (tt_in - t_ideal),
+        )?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi - eta * rl, t_ideal)?,
     };
     stage(gas, tt_in, tt_out, pr, Some(t_ideal), false)
@@ -192,8 +209,12 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
     let eta = eff.value()?;
     super::non_negative("turbine work", work)?;
     let s1 = gas.state(tt_in)?;
+    // Guess through cp at the mean temperature of a first estimate.
+    let cp_m = gas
+        .cp((tt_in - 0.5 * work / s1.cp).max(gas.range().0))
+        .unwrap_or(s1.cp);
     let tt_out =
-        invert_h(gas, s1.h - work, tt_in - work / s1.cp).map_err(|_| FlowError::BadInput {
+        invert_h(gas, s1.h - work, tt_in - work / cp_m).map_err(|_| FlowError::BadInput {
             what: "turbine work",
             value: work,
             why: "it takes the exit total temperature below the gas data range",
@@ -202,7 +223,9 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
     let (rl, t_ideal) = match eff {
         Efficiency::Isentropic(_) => {
             let h_ideal = s1.h - work / eta;
-            let t_ideal = invert_h(gas, h_ideal, tt_out).map_err(|_| FlowError::BadInput {
+            // The secant cp of the actual expansion guesses the ideal one.
+            let guess = tt_in - (tt_in - tt_out) / eta;
+            let t_ideal = invert_h(gas, h_ideal, guess).map_err(|_| FlowError::BadInput {
                 what: "turbine work",
                 value: work,
                 why: "the ideal expansion leaves the gas data range: too much work for this efficiency",

@@ -180,6 +180,12 @@ pub fn stoichiometric_far(fuel: Fuel) -> f64 {
 }
 
 fn dry_air_kmol_per_kg() -> [f64; 5] {
+    // Computed once: every mixture and every burner trial starts from it.
+    static N: std::sync::OnceLock<[f64; 5]> = std::sync::OnceLock::new();
+    *N.get_or_init(dry_air_kmol_per_kg_uncached)
+}
+
+fn dry_air_kmol_per_kg_uncached() -> [f64; 5] {
     let sum: f64 = X_DRY_AIR.iter().map(|(_, x)| x).sum();
     let m_air: f64 = X_DRY_AIR
         .iter()
@@ -284,8 +290,19 @@ impl Composition {
         dn[index(Species::CO2)] = 1.0 / mf;
         dn[index(Species::H2O)] = self.fuel.hc / 2.0 / mf;
         dn[index(Species::O2)] = -(1.0 + self.fuel.hc / 4.0) / mf;
-        let t_ref = super::T_REFERENCE;
-        let (ln_t, ln_ref) = (t.ln(), t_ref.ln());
+        // Each species' molar enthalpy at the reference temperature, once.
+        static H_REF: std::sync::OnceLock<[f64; 5]> = std::sync::OnceLock::new();
+        let h_ref = H_REF.get_or_init(|| {
+            let t_ref = super::T_REFERENCE;
+            let mut out = [0.0; 5];
+            for s in Species::ALL {
+                let d = s.data();
+                let a = if t_ref <= d.t_mid { &d.low } else { &d.high };
+                out[index(s)] = Polynomial::h_of(a, t_ref, t_ref.ln());
+            }
+            out
+        });
+        let ln_t = t.ln();
         let (mut base, mut per_far) = (0.0, 0.0);
         for s in Species::ALL {
             let (ni, di) = (n.kmol[index(s)], dn[index(s)]);
@@ -301,9 +318,8 @@ impl Composition {
                     model: "thermally perfect",
                 });
             }
-            let at = |x: f64| if x <= d.t_mid { &d.low } else { &d.high };
-            let h = R_UNIVERSAL
-                * (Polynomial::h_of(at(t), t, ln_t) - Polynomial::h_of(at(t_ref), t_ref, ln_ref));
+            let a = if t <= d.t_mid { &d.low } else { &d.high };
+            let h = R_UNIVERSAL * (Polynomial::h_of(a, t, ln_t) - h_ref[index(s)]);
             base += ni * h;
             per_far += di * h;
         }
