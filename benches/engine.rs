@@ -107,10 +107,12 @@ fn full_evaluation(c: &mut Criterion) {
             .map(|g| g.3)
             .unwrap();
         let mut t = Toggle(false);
+        // Through a handle, as sweeps and reductions set givens: no path
+        // parsed per iteration.
+        let h = e.handle("ambient.altitude").unwrap();
         group.bench_function(format!("{}/all_processes", s.name), |b| {
             b.iter(|| {
-                e.set_si("ambient.altitude", black_box(t.next(alt, alt + 1.0)))
-                    .unwrap();
+                e.set_by(&h, black_box(t.next(alt, alt + 1.0))).unwrap();
             })
         });
     }
@@ -125,8 +127,9 @@ fn incremental(c: &mut Criterion) {
         e.set_si(s.cv, 0.985).unwrap();
         assert_eq!(e.evaluations() - n, 1, "{}: cv reruns one process", s.name);
         let mut t = Toggle(false);
+        let h = e.handle(s.cv).unwrap();
         group.bench_function(format!("{}/nozzle_cv", s.name), |b| {
-            b.iter(|| e.set_si(s.cv, black_box(t.next(0.98, 0.99))).unwrap())
+            b.iter(|| e.set_by(&h, black_box(t.next(0.98, 0.99))).unwrap())
         });
     }
     group.finish();
