@@ -178,11 +178,13 @@ pub fn sig(v: f64, sig: usize) -> String {
         return format!("{:.*e}", sig.saturating_sub(1), v);
     }
     // Up to 12 figures the digits come from one scaled integer (a few
-    // dozen instructions; a sweep prints millions of cells). A value within
-    // about 1e-16 of a rounding tie may round the other way from an exact
-    // decimal conversion; beyond 12 figures the exact conversion is used.
-    if sig <= 12 {
-        return fast_sig(v, sig, mag);
+    // dozen instructions; a sweep prints millions of cells); next to a
+    // rounding tie and beyond 12 figures the exact conversion is used, so
+    // the result is always that of the exact conversion.
+    if sig <= 12
+        && let Some(s) = fast_sig(v, sig, mag)
+    {
+        return s;
     }
     let decimals = (sig as i32 - 1 - mag).max(0) as usize;
     // Whole numbers longer than `sig` digits are rounded too (1974632.3 to
@@ -202,16 +204,22 @@ pub fn sig(v: f64, sig: usize) -> String {
 }
 
 /// [`sig`] for `sig <= 12` and a decade `mag` in -4..=9, through one
-/// rounded integer of `sig` digits.
-fn fast_sig(v: f64, sig: usize, mag: i32) -> String {
+/// rounded integer of `sig` digits; None next to a rounding tie, where the
+/// one rounding of the scaled product could decide the other way from the
+/// exact decimal value (the caller then converts exactly).
+fn fast_sig(v: f64, sig: usize, mag: i32) -> Option<String> {
     let d = sig as i32 - 1 - mag;
     let a = v.abs();
     // Exact powers of ten up to 1e22: one rounding in the product.
-    let m = if d >= 0 {
-        (a * 10f64.powi(d)).round()
+    let scaled = if d >= 0 {
+        a * 10f64.powi(d)
     } else {
-        (a / 10f64.powi(-d)).round()
-    } as u64;
+        a / 10f64.powi(-d)
+    };
+    if (scaled - scaled.floor() - 0.5).abs() < 1e-6 {
+        return None;
+    }
+    let m = scaled.round() as u64;
     let mut out = String::with_capacity(sig + 8);
     if v < 0.0 && m != 0 {
         out.push('-');
@@ -237,7 +245,7 @@ fn fast_sig(v: f64, sig: usize, mag: i32) -> String {
             out.push_str(frac);
         }
     }
-    out
+    Some(out)
 }
 
 fn text_cell(c: &Cell) -> String {
@@ -504,7 +512,7 @@ mod tests {
                         mag += 1;
                     }
                     let dec = (digits as i32 - 1 - mag).max(0) as usize;
-                    if (-4..=9).contains(&mag) && mag < digits as i32 && digits < 15 {
+                    if (-4..=9).contains(&mag) && mag < digits as i32 {
                         let exact = format!("{v:.dec$}");
                         let exact = exact.trim_start_matches('-');
                         assert_eq!(ours.trim_start_matches('-'), exact, "{v} to {digits}");
@@ -520,6 +528,18 @@ mod tests {
             x *= 1.37;
         }
         assert!(n > 1000);
+        // Ties and near-ties take the exact conversion's side.
+        for (v, digits) in [
+            (0.125, 2),
+            (869.075, 5),
+            (2.5, 1),
+            (1234.5, 4),
+            (0.000123455, 5),
+        ] {
+            let mag = f64::log10(v).floor() as i32;
+            let dec = (digits as i32 - 1 - mag).max(0) as usize;
+            assert_eq!(sig(v, digits), format!("{v:.dec$}"), "{v} to {digits}");
+        }
     }
 
     #[test]
