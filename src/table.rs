@@ -285,27 +285,9 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
         c[idx] = Cell::from(v);
         c
     };
-    match rows {
-        Rows::Mach(ms) => {
-            for &m in ms {
-                match row(rel, g, m) {
-                    Ok(cells) => push(
-                        &mut t,
-                        RowOutcome {
-                            cells,
-                            problem: None,
-                        },
-                    ),
-                    Err(e) => push(
-                        &mut t,
-                        RowOutcome {
-                            cells: blank(0, m),
-                            problem: Some(format!("at {} {m}: {e}", keys[0].1)),
-                        },
-                    ),
-                }
-            }
-        }
+    // Mach rows are rows given by the first column.
+    let (idx, values, branch) = match rows {
+        Rows::Mach(ms) => (0, ms, Pick::Unstated),
         Rows::Given {
             key,
             values,
@@ -322,92 +304,93 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
             {
                 return Err("the deflection is set by --deflection; give another column".into());
             }
-            let label = keys[idx].1;
-            for &v in values {
-                if idx == 0 {
-                    match row(rel, g, v) {
-                        Ok(cells) => push(
-                            &mut t,
-                            RowOutcome {
-                                cells,
-                                problem: None,
-                            },
-                        ),
-                        Err(e) => push(
-                            &mut t,
-                            RowOutcome {
-                                cells: blank(0, v),
-                                problem: Some(format!("at {label} {v}: {e}")),
-                            },
-                        ),
-                    }
-                    continue;
-                }
-                let fail = |why: String| RowOutcome {
-                    cells: blank(idx, v),
-                    problem: Some(format!("{label} = {v}: {why}")),
+            (idx, values, *branch)
+        }
+    };
+    let label = keys[idx].1;
+    for &v in values {
+        if idx == 0 {
+            match row(rel, g, v) {
+                Ok(cells) => push(
+                    &mut t,
+                    RowOutcome {
+                        cells,
+                        problem: None,
+                    },
+                ),
+                Err(e) => push(
+                    &mut t,
+                    RowOutcome {
+                        cells: blank(0, v),
+                        problem: Some(format!("at {label} {v}: {e}")),
+                    },
+                ),
+            }
+            continue;
+        }
+        let fail = |why: String| RowOutcome {
+            cells: blank(idx, v),
+            problem: Some(format!("{label} = {v}: {why}")),
+        };
+        if !v.is_finite() {
+            push(&mut t, fail("not a finite number".into()));
+            continue;
+        }
+        let roots = match invert(rel, g, idx, v) {
+            Ok(r) => r,
+            Err(e) => {
+                push(&mut t, fail(e.to_string()));
+                continue;
+            }
+        };
+        let sub: Vec<f64> = roots.iter().copied().filter(|m| *m < 1.0).collect();
+        let sup: Vec<f64> = roots.iter().copied().filter(|m| *m >= 1.0).collect();
+        let chosen: Vec<f64> = match branch {
+            Pick::Subsonic => sub.clone(),
+            Pick::Supersonic => sup.clone(),
+            Pick::Both => roots.clone(),
+            Pick::Unstated if !sub.is_empty() && !sup.is_empty() => {
+                let list = |v: &[f64]| {
+                    v.iter()
+                        .map(|m| crate::report::sig(*m, 6))
+                        .collect::<Vec<_>>()
+                        .join(", ")
                 };
-                if !v.is_finite() {
-                    push(&mut t, fail("not a finite number".into()));
-                    continue;
-                }
-                let roots = match invert(rel, g, idx, v) {
-                    Ok(r) => r,
-                    Err(e) => {
-                        push(&mut t, fail(e.to_string()));
-                        continue;
-                    }
-                };
-                let sub: Vec<f64> = roots.iter().copied().filter(|m| *m < 1.0).collect();
-                let sup: Vec<f64> = roots.iter().copied().filter(|m| *m >= 1.0).collect();
-                let chosen: Vec<f64> = match branch {
-                    Pick::Subsonic => sub.clone(),
-                    Pick::Supersonic => sup.clone(),
-                    Pick::Both => roots.clone(),
-                    Pick::Unstated if !sub.is_empty() && !sup.is_empty() => {
-                        let list = |v: &[f64]| {
-                            v.iter()
-                                .map(|m| crate::report::sig(*m, 6))
-                                .collect::<Vec<_>>()
-                                .join(", ")
-                        };
-                        push(
-                            &mut t,
-                            fail(format!(
-                                "reached below Mach 1 (M {}) and above (M {}): choose with --branch subsonic, supersonic or both",
-                                list(&sub),
-                                list(&sup)
-                            )),
-                        );
-                        continue;
-                    }
-                    Pick::Unstated => roots.clone(),
-                };
-                if chosen.is_empty() {
-                    let why = if roots.is_empty() {
-                        let (lo, hi) = mach_range(rel);
-                        format!("not reached at any Mach number from {lo} to {hi}")
-                    } else {
-                        format!(
-                            "reached only on the other branch (M {})",
-                            crate::report::sig(roots[0], 6)
-                        )
-                    };
-                    push(&mut t, fail(why));
-                    continue;
-                }
-                for m in chosen {
-                    match row(rel, g, m) {
-                        Ok(cells) => push(
-                            &mut t,
-                            RowOutcome {
-                                cells,
-                                problem: None,
-                            },
-                        ),
-                        Err(e) => push(&mut t, fail(e.to_string())),
-                    }
-                }
+                push(
+                    &mut t,
+                    fail(format!(
+                        "reached below Mach 1 (M {}) and above (M {}): choose with --branch subsonic, supersonic or both",
+                        list(&sub),
+                        list(&sup)
+                    )),
+                );
+                continue;
+            }
+            Pick::Unstated => roots.clone(),
+        };
+        if chosen.is_empty() {
+            let why = if roots.is_empty() {
+                let (lo, hi) = mach_range(rel);
+                format!("not reached at any Mach number from {lo} to {hi}")
+            } else {
+                format!(
+                    "reached only on the other branch (M {})",
+                    crate::report::sig(roots[0], 6)
+                )
+            };
+            push(&mut t, fail(why));
+            continue;
+        }
+        for m in chosen {
+            match row(rel, g, m) {
+                Ok(cells) => push(
+                    &mut t,
+                    RowOutcome {
+                        cells,
+                        problem: None,
+                    },
+                ),
+                Err(e) => push(&mut t, fail(e.to_string())),
             }
         }
     }

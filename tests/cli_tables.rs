@@ -279,9 +279,10 @@ fn a_row_that_cannot_be_computed_keeps_its_place_with_its_reason() {
             "{args:?}: {text}"
         );
     }
-    // The case: Mach 0 to 3 in air at 300 K. The last two static
-    // temperatures (167 K, 107 K) lie below the gas data: four... three
-    // rows computed and the two others in place, in CSV with a problem.
+    // Mach 0 to 3 in air at Tt 300 K: the static temperatures at M 2 and 3
+    // (167 K and 107 K, T/Tt = 1/(1 + 0.2 M^2) near gamma 1.4) lie below the
+    // 200 K gas data, so three rows are computed and two keep their place
+    // with the reason, in CSV with a problem.
     let mut a = vec![
         "table",
         "isentropic",

@@ -992,18 +992,7 @@ macro_rules! walk_givens {
 impl Workbook {
     /// Walk every given with its path and quantity.
     pub fn visit_givens(&mut self, f: &mut dyn FnMut(GivenField<'_>)) {
-        let g =
-            |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &mut Given| {
-                f(GivenField {
-                    scope,
-                    name,
-                    key,
-                    quantity,
-                    given,
-                })
-            };
-        let book = self;
-        walk_givens!(book, g, Part::All, mut);
+        self.visit_givens_in(Part::All, f);
     }
 
     /// Walk the givens of one part of the workbook only (the ambient block
@@ -1042,17 +1031,7 @@ impl Workbook {
 
     /// Walk every given without changing any (no copy of the workbook).
     pub fn visit_givens_ref(&self, f: &mut dyn FnMut(GivenRef<'_>)) {
-        let g = |scope: &'static str, name: &str, key: &str, quantity: Quantity, given: &Given| {
-            f(GivenRef {
-                scope,
-                name,
-                key,
-                quantity,
-                given,
-            })
-        };
-        let book = self;
-        walk_givens!(book, g, Part::All,);
+        self.visit_givens_ref_in(Part::All, f);
     }
 
     /// Parse every given with its field's quantity. All errors are
