@@ -69,20 +69,21 @@ pub fn intervals(from: f64, to: f64, step: f64, text: &str, cap: usize) -> Resul
     // Whole steps within rounding of the decimal values as typed.
     if (k - whole).abs() > 1e-9 * k.max(1.0) {
         let hint = if step > span && step.fract() == 0.0 {
+            // The other reading: a whole number where a step size goes is
+            // often meant as a count of steps.
             format!(
-                "; a step larger than the span: for {} points write FROM:TO@{}",
-                step as u64 + 1,
+                "; if {} was meant as a number of steps, write FROM:TO@{} for that many points",
+                step as u64,
                 step as u64 + 1
             )
         } else {
             format!(
-                "; {} steps leave {:.6} short of TO: choose a step that divides TO - FROM, or FROM:TO@N for N points",
-                k.floor(),
-                span - k.floor() * step
+                "; {} whole steps fall short of TO: choose a step that divides TO - FROM, or write FROM:TO@N for N points",
+                k.floor()
             )
         };
         return Err(format!(
-            "\"{text}\": a step of {step} does not reach TO from FROM in whole steps{hint}"
+            "\"{text}\": the step does not reach TO from FROM in whole steps{hint}"
         ));
     }
     Ok(whole as usize)

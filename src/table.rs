@@ -134,7 +134,7 @@ fn mach_range(rel: Relation) -> (f64, f64) {
 }
 
 /// Highest Mach number an inverse searches.
-pub const MACH_MAX: f64 = 50.0;
+pub const MACH_MAX: f64 = 100.0;
 
 /// Sample Mach numbers for an inverse over `[lo, hi]`: dense near the low
 /// end and around Mach 1, geometric above, with Mach 1 itself included.
@@ -322,7 +322,7 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
                     &mut t,
                     RowOutcome {
                         cells: blank(0, v),
-                        problem: Some(format!("at {label} {v}: {e}")),
+                        problem: Some(format!("at {label} {}: {e}", short(v))),
                     },
                 ),
             }
@@ -330,7 +330,7 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
         }
         let fail = |why: String| RowOutcome {
             cells: blank(idx, v),
-            problem: Some(format!("{label} = {v}: {why}")),
+            problem: Some(format!("{label} = {}: {why}", short(v))),
         };
         if !v.is_finite() {
             push(&mut t, fail("not a finite number".into()));
@@ -397,7 +397,50 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
     Ok((t, failed))
 }
 
+/// A number for a message as typed when short, else in exponent form
+/// (1e-200, not two hundred zeros).
+fn short(v: f64) -> String {
+    let s = format!("{v}");
+    if s.len() > 14 { format!("{v:e}") } else { s }
+}
+
+/// A computed value as a cell; a value that overflowed (an infinite or NaN
+/// result at an extreme Mach number or gamma) is the row's problem, never
+/// a silently empty cell.
+fn num(v: f64, what: &'static str) -> Result<Cell, FlowError> {
+    if v.is_finite() {
+        Ok(Cell::Num(v))
+    } else {
+        Err(FlowError::BadInput {
+            what,
+            value: v,
+            why: "the value overflows double precision at this Mach number and gamma",
+        })
+    }
+}
+
 fn row(rel: Relation, g: &TableGas, m: f64) -> Result<Vec<Cell>, FlowError> {
+    if !(m.is_finite() && m >= 0.0) {
+        return Err(FlowError::BadInput {
+            what: "Mach number",
+            value: m,
+            why: "it must be zero or positive",
+        });
+    }
+    let cells = row_cells(rel, g, m)?;
+    // Only the Mach angle and the Prandtl-Meyer angle are undefined below
+    // Mach 1; anything else empty has overflowed.
+    for (i, c) in cells.iter().enumerate() {
+        let optional = matches!(rel, Relation::Isentropic) && i >= 5 && m < 1.0
+            || matches!(rel, Relation::Isentropic) && i == 4 && m == 0.0;
+        if *c == Cell::Empty && !optional {
+            num(f64::NAN, columns(rel)[i].1)?;
+        }
+    }
+    Ok(cells)
+}
+
+fn row_cells(rel: Relation, g: &TableGas, m: f64) -> Result<Vec<Cell>, FlowError> {
     let s = state(g, m)?;
     Ok(match rel {
         Relation::Isentropic => {

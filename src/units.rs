@@ -436,10 +436,10 @@ static KG_N_S: Unit = Unit::new(
     &["kg/(N s)"],
 );
 static G_KN_S: Unit = Unit::new(
-    "g/kN/s",
+    "g/(kN s)",
     Q::ThrustSpecificFuelConsumption,
     1.0e-6,
-    &["g/(kN s)"],
+    &["g/kN/s"],
 );
 static MG_N_S: Unit = Unit::new(
     "mg/N/s",
@@ -449,11 +449,11 @@ static MG_N_S: Unit = Unit::new(
 )
 .case_sensitive();
 static LBM_LBF_H: Unit = Unit::new(
-    "lbm/lbf/h",
+    "lbm/(lbf h)",
     Q::ThrustSpecificFuelConsumption,
     LBM / (LBF * 3600.0),
     &[
-        "lbm/(lbf h)",
+        "lbm/lbf/h",
         "lbm/lbf/hr",
         "lb/lbf/h",
         "lb/lbf/hr",
@@ -1759,7 +1759,24 @@ mod tests {
         assert_eq!(format(0.001, Q::Pressure, UnitSystem::Si), "1e-6 kPa");
         assert_eq!(
             format(17e-6, Q::ThrustSpecificFuelConsumption, UnitSystem::Si),
-            "17 g/kN/s"
+            "17 g/(kN s)"
+        );
+        // The trade's spelling reads back.
+        assert_relative_eq!(
+            si("17 g/(kN s)", Q::ThrustSpecificFuelConsumption),
+            17e-6,
+            max_relative = 1e-15
+        );
+        let us = format(
+            28.32545e-6,
+            Q::ThrustSpecificFuelConsumption,
+            UnitSystem::Us,
+        );
+        assert!(us.ends_with(" lbm/(lbf h)"), "{us}");
+        assert_relative_eq!(
+            si(&us, Q::ThrustSpecificFuelConsumption),
+            28.32545e-6,
+            max_relative = 1e-4
         );
         assert_eq!(format_in(0.04, &PERCENT, 5), "4 %");
         assert_eq!(format_in(123_456.0, &PA, 3), "123000 Pa");

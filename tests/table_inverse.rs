@@ -310,3 +310,24 @@ fn thermal_oblique_shock_computes_at_every_mach_above_detachment() {
         .collect();
     assert!(betas.windows(2).all(|w| w[1] < w[0]));
 }
+
+#[test]
+fn an_overflowed_value_is_a_row_problem_not_an_empty_cell() {
+    // At gamma 1.0001 and Mach 50 the area ratio ((1 + (g-1)/2 M^2)^((g+1)/(2(g-1))))
+    // is about 10^(2e4 * log10(1.125)) and overflows a double: the row says so.
+    let g = TableGas {
+        gas: Gas::Perfect(PerfectGas::new(1.0001, 287.05).unwrap()),
+        tt: 288.15,
+    };
+    let (t, failed) = table::build(Relation::Isentropic, &g, &Rows::Mach(vec![0.5, 50.0])).unwrap();
+    assert_eq!(failed, 1);
+    let Cell::Text(note) = t.rows[1].last().unwrap() else {
+        panic!("{:?}", t.rows[1])
+    };
+    assert!(note.contains("overflows"), "{note}");
+    assert_eq!(
+        *t.rows[0].last().unwrap(),
+        Cell::Empty,
+        "the first row computed"
+    );
+}

@@ -8,7 +8,8 @@ use crate::units::{self, Quantity, UnitSystem};
 /// Altitudes are geopotential unless --geometric (Earth radius 6356766 m, as the standard uses).
 #[derive(Debug, clap::Args)]
 pub(super) struct Args {
-    /// Altitudes: comma list and/or FROM:TO:STEP, in metres (feet with --units us).
+    /// Altitudes, in metres (feet with --units us): values and ranges, comma
+    /// separated (FROM:TO:STEP a step that must land on TO, FROM:TO@N N points).
     #[arg(long, allow_hyphen_values = true)]
     altitude: String,
     /// Hot- or cold-day temperature offset from standard ("15 K", "27 degF"; a bare number is K, or degF with --units us).

@@ -210,7 +210,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 } else {
                     "derived"
                 };
-                let r = rel(x, y).map_or(String::new(), |r| crate::report::sig(r, 4));
+                let r = rel(x, y).map_or(String::new(), |r| {
+                    crate::report::sig(r, crate::report::precision())
+                });
                 w.write_record([
                     section,
                     p,

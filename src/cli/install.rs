@@ -71,7 +71,7 @@ pub(super) fn manual(a: ManualArgs) -> Result<u8, Failure> {
         written.push(path);
     }
     println!(
-        "wrote {} pages to {} (man stationwise; MANPATH must include its parent)",
+        "wrote {} pages to {} (man finds them when that folder is a man1 folder under a manual path, as ~/.local/share/man/man1 is)",
         written.len(),
         a.dir.display()
     );

@@ -58,20 +58,21 @@ pub(super) struct Args {
     #[arg(long)]
     gas: Option<GasArg>,
     /// Fuel-air ratio for --gas products (kg fuel per kg dry air).
-    #[arg(long, default_value_t = 0.0)]
+    #[arg(long, default_value_t = 0.0, conflicts_with = "gamma")]
     far: f64,
     /// Fuel hydrogen-to-carbon molar ratio for --gas products.
-    #[arg(long, default_value_t = 1.92)]
+    #[arg(long, default_value_t = 1.92, conflicts_with = "gamma")]
     hc: f64,
     /// Total temperature for a thermally perfect gas ("1500", "1500 K", "2240 degF").
     #[arg(long, default_value = "288.15 K")]
     tt: String,
-    /// Mach numbers: a comma list and/or FROM:TO:STEP ranges.
+    /// Mach numbers: values and ranges, comma separated (FROM:TO:STEP a step
+    /// size that must land on TO, FROM:TO@N N points).
     #[arg(long, allow_hyphen_values = true)]
     mach: Option<String>,
     /// Any column's values as the input: KEY=LIST, KEY one of the
     /// relation's column keys (as the CSV header names them: p_pt, a_astar,
-    /// pt2_pt1, beta_weak_deg, friction_4flstar_d, ...).
+    /// pt2_pt1, beta_weak_deg, friction_4flstar_d, ...), LIST as for --mach.
     #[arg(long, conflicts_with_all = ["mach", "area_ratio", "p_pt"], allow_hyphen_values = true)]
     given: Option<String>,
     /// Area ratios A/A* (isentropic; short for --given a_astar=LIST).
@@ -172,12 +173,20 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         RelationArg::Rayleigh => Relation::Rayleigh,
         RelationArg::Fanno => Relation::Fanno,
     };
-    if let (Rows::Given { key, .. }, false) = (&rows, a.area_ratio.is_none() && a.p_pt.is_none())
-        && rel != Relation::Isentropic
-    {
+    if (a.area_ratio.is_some() || a.p_pt.is_some()) && rel != Relation::Isentropic {
+        let keys: Vec<&str> = table::columns(rel).iter().map(|c| c.0).collect();
         return Err(Failure::bad(format!(
-            "--area-ratio and --p-pt are isentropic columns; for this relation use --given {key}=... with one of its columns"
+            "--area-ratio and --p-pt are isentropic columns; for this relation use --given KEY=LIST with KEY one of {}",
+            keys.join(", ")
         )));
+    }
+    if a.deflection.is_some() && !matches!(rel, Relation::ObliqueShock(_)) {
+        return Err(Failure::bad("--deflection is for oblique-shock only"));
+    }
+    if !matches!(a.gas, Some(GasArg::Products)) && (a.far != 0.0 || a.hc != 1.92) {
+        return Err(Failure::bad(
+            "--far and --hc describe --gas products; air has no fuel",
+        ));
     }
     let (mut t, failed) = table::build(rel, &TableGas { gas, tt }, &rows).map_err(Failure::bad)?;
     // Aligned text shows the note column only when a row has a note; CSV

@@ -116,7 +116,7 @@ pub fn oblique(
         return Err(FlowError::BadInput {
             what: "deflection angle",
             value: theta.to_degrees(),
-            why: "it must lie between 0 and 90 degrees",
+            why: "it must be at least 0 and below 90 degrees",
         });
     }
     let mu = (1.0 / up.mach).asin();
