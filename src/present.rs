@@ -104,11 +104,24 @@ pub fn stations_table(engine: &Engine, system: UnitSystem) -> Table {
     t
 }
 
-/// Format a value with its display unit ("17.611 kN").
+/// Format a value with its display unit ("17.611 kN", "19.510 kN",
+/// "0.99000"): the quantity's display figures (or `--precision`), trailing
+/// zeros kept, as in the tables, so every printed value states its figures
+/// the same way.
 pub fn with_unit(si: f64, q: Quantity, system: UnitSystem) -> String {
-    match q {
-        Quantity::Ratio | Quantity::Mach => crate::report::sig(si, 5),
-        _ => units::format(si, q, system),
+    let u = unit_of(q, system);
+    let digits = crate::report::prose_digits(units::display_digits(q, system));
+    let mut v = units::from_si(si, u);
+    // A unit with an offset turns, say, 255.3722 K into 1e-14 degF by
+    // rounding; print that as the zero it is.
+    if u.offset != 0.0 && v.abs() <= 1e-9 * (u.offset / u.scale).abs() {
+        v = 0.0;
+    }
+    let n = crate::report::sig(v, digits);
+    if u.symbol.is_empty() {
+        n
+    } else {
+        format!("{n} {}", u.symbol)
     }
 }
 

@@ -18,9 +18,23 @@ static PRECISION: AtomicUsize = AtomicUsize::new(DEFAULT_PRECISION);
 /// Significant figures when nothing else is asked for.
 pub const DEFAULT_PRECISION: usize = 6;
 
-/// Set the significant figures of text and CSV numbers (clamped to 1..=17).
+/// Significant figures asked for values in sentences; 0 until asked.
+static PROSE: AtomicUsize = AtomicUsize::new(0);
+
+/// Set the significant figures of text and CSV numbers (clamped to
+/// 1..=17), tables and values in sentences alike.
 pub fn set_precision(n: usize) {
     PRECISION.store(n.clamp(1, 17), Ordering::Relaxed);
+    PROSE.store(n.clamp(1, 17), Ordering::Relaxed);
+}
+
+/// Figures of a value in a sentence: those asked with `--precision`, or
+/// `default` (the quantity's display figures).
+pub fn prose_digits(default: usize) -> usize {
+    match PROSE.load(Ordering::Relaxed) {
+        0 => default,
+        n => n,
+    }
 }
 
 /// The significant figures of text and CSV numbers.

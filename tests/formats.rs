@@ -299,3 +299,32 @@ fn precision_sets_the_figures_of_csv_numbers() {
     let out = run(&args("0"));
     assert_eq!(out.status.code(), Some(1), "precision 0 is refused");
 }
+
+#[test]
+fn precision_reaches_values_in_sentences_and_zeros_are_kept() {
+    let eval = |extra: &[&str]| {
+        let mut a = vec!["eval".to_string(), sheet("turbojet.ron")];
+        a.extend(extra.iter().map(|s| s.to_string()));
+        String::from_utf8(run(&a).stdout).unwrap()
+    };
+    let line = |text: &str, what: &str| {
+        text.lines()
+            .find(|l| l.trim_start().starts_with(what))
+            .unwrap_or_else(|| panic!("no {what}:\n{text}"))
+            .split_whitespace()
+            .rev()
+            .nth(1)
+            .unwrap()
+            .to_string()
+    };
+    // The quantity's display figures by default (5), trailing zeros kept:
+    // the free stream's 20 kg/s reads 20.000 kg/s.
+    let text = eval(&[]);
+    assert_eq!(line(&text, "air flow"), "20.000");
+    let thrust = line(&text, "net thrust");
+    assert_eq!(significant_digits(&thrust), 5, "{thrust}");
+    // --precision 8 reaches the summary as it reaches the tables.
+    let text = eval(&["--precision", "8"]);
+    let thrust = line(&text, "net thrust");
+    assert_eq!(significant_digits(&thrust), 8, "{thrust}");
+}

@@ -51,8 +51,11 @@ pub struct Cli {
     us: bool,
     /// Significant figures of numbers in text and CSV tables (JSON always
     /// carries the full round-trip value).
-    #[arg(long, global = true, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=17))]
-    precision: u8,
+    /// Significant figures of numbers in text and CSV: tables default to 6,
+    /// values in sentences to each quantity's display figures (5; 6 for
+    /// pressures in kPa). JSON always carries the full round-trip value.
+    #[arg(long, global = true, value_parser = clap::value_parser!(u8).range(1..=17))]
+    precision: Option<u8>,
 }
 
 #[derive(Debug, Subcommand)]
@@ -172,7 +175,9 @@ pub fn run() -> ExitCode {
             return ExitCode::from(code);
         }
     };
-    crate::report::set_precision(cli.precision as usize);
+    if let Some(n) = cli.precision {
+        crate::report::set_precision(n as usize);
+    }
     let Some(command) = cli.command else {
         let opts = crate::tui::Options {
             ascii: cli.ascii,
