@@ -1073,8 +1073,17 @@ impl Engine {
         for &i in &self.graph.order {
             if let Some(NodeOut::Failed(m)) = &self.nodes[i] {
                 let p = &self.book.processes[i];
+                // The kind before the name, unless the name says it already
+                // (a process named "compressor" is not a compressor
+                // "compressor").
+                let kind = crate::kinds::of(&p.kind).name();
+                let place = if p.name.eq_ignore_ascii_case(kind) {
+                    format!("\"{}\"", p.name)
+                } else {
+                    format!("{kind} \"{}\"", p.name)
+                };
                 v.push(Problem {
-                    place: format!("{} \"{}\"", crate::kinds::of(&p.kind).name(), p.name),
+                    place,
                     message: m.clone(),
                 });
             }
