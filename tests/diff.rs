@@ -112,3 +112,28 @@ fn no_difference_exits_zero() {
     assert_eq!(code, 0);
     assert!(text.starts_with("no differences"));
 }
+
+#[test]
+fn the_same_value_written_another_way_is_not_a_changed_given() {
+    // 0 m and 0 ft are the same altitude: listed apart, not counted as a
+    // change, and nothing derived moves.
+    let a = root().join("sheets/turbojet.ron");
+    let b = changed_copy(
+        "turbojet.ron",
+        "altitude: \"0 m\"",
+        "altitude: \"0 ft\"",
+        "respelt",
+    );
+    let (text, code) = diff(&a, &b, &[]);
+    assert_eq!(code, 2, "the files differ: {text}");
+    let head = text.lines().next().unwrap();
+    assert!(
+        head.starts_with("0 givens changed, 0 derived values moved"),
+        "{head}"
+    );
+    assert!(
+        head.contains("1 given written differently (same value)"),
+        "{head}"
+    );
+    assert!(text.contains("ambient.altitude: 0 m -> 0 ft"), "{text}");
+}

@@ -90,8 +90,15 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let ga = ba.givens();
     let gb = bb.givens();
     let mut givens: Vec<(String, Option<String>, Option<String>)> = Vec::new();
+    // The same value written another way ("0 m" and "0 ft", "10" and
+    // "10.0"): shown, not counted as a changed given.
+    let mut respelt: Vec<(String, String, String)> = Vec::new();
+    let same = |x: f64, y: f64| x == y || (x - y).abs() <= 1e-12 * x.abs().max(y.abs());
     for (p, _, t, si) in &ga {
         match gb.iter().find(|(q, ..)| q == p) {
+            Some((_, _, t2, si2)) if t2 != t && same(*si, *si2) => {
+                respelt.push((p.clone(), t.clone(), t2.clone()))
+            }
             Some((_, _, t2, si2)) if t2 != t || si2 != si => {
                 givens.push((p.clone(), Some(t.clone()), Some(t2.clone())))
             }
@@ -151,8 +158,11 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (summary, other): (Vec<&Moved>, Vec<&Moved>) =
         moved.iter().partition(|(p, ..)| p.starts_with("summary."));
     let system: UnitSystem = a.units.into();
-    let differs =
-        !givens.is_empty() || !structure.is_empty() || !moved.is_empty() || !comments.is_empty();
+    let differs = !givens.is_empty()
+        || !structure.is_empty()
+        || !moved.is_empty()
+        || !comments.is_empty()
+        || !respelt.is_empty();
     let rel = |x: &Option<f64>, y: &Option<f64>| match (x, y) {
         (Some(x), Some(y)) if *x != 0.0 => Some((y - x) / x.abs() * 100.0),
         _ => None,
@@ -168,6 +178,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             let v = serde_json::json!({
                 "summary": {
                     "givens_changed": givens.len(),
+                    "givens_respelt": respelt.len(),
                     "structural_changes": structure.len(),
                     "derived_moved": moved.len(),
                     "threshold": a.threshold,
@@ -175,6 +186,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 },
                 "summary_figures": summary.iter().map(|m| item(m)).collect::<Vec<_>>(),
                 "givens": givens.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
+                "respelt": respelt.iter().map(|(p, x, y)| serde_json::json!({"path": p, "old": x, "new": y})).collect::<Vec<_>>(),
                 "structure": structure,
                 "derived": other.iter().filter(|_| a.all).map(|m| item(m)).collect::<Vec<_>>(),
                 "comments": comments.iter().map(|(x, y)| serde_json::json!({"old": x, "new": y})).collect::<Vec<_>>(),
@@ -197,6 +209,9 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
             for (p, x, y) in &givens {
                 let (x, y) = (x.clone().unwrap_or_default(), y.clone().unwrap_or_default());
                 w.write_record(["given", p, &x, &y, "", ""]).map_err(io)?;
+            }
+            for (p, x, y) in &respelt {
+                w.write_record(["respelt", p, x, y, "", ""]).map_err(io)?;
             }
             for s in &structure {
                 w.write_record(["structure", s, "", "", "", ""])
@@ -248,6 +263,13 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 plural(moved.len(), "derived value moved", "derived values moved")
                     + &format!(" (beyond {:e} relative)", a.threshold),
             ];
+            if !respelt.is_empty() {
+                head.push(plural(
+                    respelt.len(),
+                    "given written differently (same value)",
+                    "givens written differently (same value)",
+                ));
+            }
             if !structure.is_empty() {
                 head.push(plural(
                     structure.len(),
@@ -281,6 +303,12 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
                 println!("givens");
                 for (p, x, y) in &givens {
                     println!("  {p}: {} -> {}", show(x), show(y));
+                }
+            }
+            if !respelt.is_empty() {
+                println!("written differently, same value");
+                for (p, x, y) in &respelt {
+                    println!("  {p}: {x} -> {y}");
                 }
             }
             if !structure.is_empty() {
