@@ -101,6 +101,8 @@ fn one_range_syntax_step_or_points_and_a_missed_step_is_refused() {
     assert_eq!(out.status.code(), Some(1));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("@1001"), "{err}");
+    // Values and ranges mixed, as tables take them: 6, 8, 10, 12, 20.
+    assert_eq!(rows("6,8:12:2,20"), 5);
     // A step that does not land on TO is refused, never rounded.
     let out = run("6:16:3");
     assert_eq!(out.status.code(), Some(1));

@@ -23,7 +23,8 @@ use std::path::PathBuf;
 pub(super) struct Args {
     /// The workbook file.
     file: PathBuf,
-    /// The given to vary: PATH=FROM:TO:STEP or PATH=FROM:TO@N.
+    /// The given to vary: PATH=VALUES, values and ranges comma separated
+    /// (FROM:TO:STEP, FROM:TO@N), with units ("6:16:1", "1300 K:1600 K@7,1650 K").
     #[arg(long)]
     vary: String,
     /// Derived values to report, comma separated paths.
@@ -42,10 +43,9 @@ const MAX_POINTS: usize = 10_000_001;
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
-    let (path, range) = a
-        .vary
-        .split_once('=')
-        .ok_or_else(|| Failure::bad("--vary: use PATH=FROM:TO:STEP or PATH=FROM:TO@N"))?;
+    let (path, range) = a.vary.split_once('=').ok_or_else(|| {
+        Failure::bad("--vary: use PATH=FROM:TO:STEP, PATH=FROM:TO@N or PATH=V1,V2,...")
+    })?;
     let path = path.trim();
     let q = engine
         .given_address(path)
@@ -54,41 +54,70 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         units::parse_stated(text, q, what, a.units.into()).map_err(Failure::bad)
     };
     let bad = |e: String| Failure::bad(format!("--vary: {e}"));
-    let (from, to, steps) = match crate::range::split(range).map_err(bad)? {
-        crate::range::Spec::One(_) => {
-            return Err(Failure::bad(
-                "--vary: give a range, PATH=FROM:TO:STEP or PATH=FROM:TO@N",
-            ));
+    // Values and ranges, comma separated, as every command reads them;
+    // each part is a segment (from, to, intervals), walked lazily so ten
+    // million points take no memory.
+    let mut segments: Vec<(f64, f64, usize)> = Vec::new();
+    let mut points = 0usize;
+    for part in range.split(',') {
+        let part = part.trim();
+        if part.is_empty() {
+            return Err(bad(format!("\"{range}\": empty entry in the list")));
         }
-        crate::range::Spec::Points(f, t, n) => {
-            let (f, t) = (stated(f, "--vary FROM")?.si, stated(t, "--vary TO")?.si);
-            if n > MAX_POINTS {
-                return Err(bad(format!("at most {MAX_POINTS} points")));
+        let seg = match crate::range::split(part).map_err(bad)? {
+            crate::range::Spec::One(v) => {
+                let v = stated(v, "--vary value")?.si;
+                (v, v, 0)
             }
-            (f, t, n - 1)
-        }
-        crate::range::Spec::Step(f, t, st) => {
-            let from = stated(f, "--vary FROM")?;
-            let to = stated(t, "--vary TO")?.si;
-            // A step is a difference: a bare one is in FROM's unit (scale
-            // only, so 5 after 59 degF is 5 degF of difference).
-            let step = match st.trim().parse::<f64>() {
-                Ok(v) => v * from.unit.scale,
-                Err(_) => {
-                    let dq = if q == Quantity::Temperature {
-                        Quantity::TemperatureDifference
-                    } else {
-                        q
-                    };
-                    units::parse(st, dq, "--vary STEP")
-                        .map_err(Failure::bad)?
-                        .si
+            crate::range::Spec::Points(f, t, n) => {
+                let (f, t) = (stated(f, "--vary FROM")?.si, stated(t, "--vary TO")?.si);
+                if n > MAX_POINTS {
+                    return Err(bad(format!("at most {MAX_POINTS} points")));
                 }
-            };
-            let n = crate::range::intervals(from.si, to, step, range.trim(), MAX_POINTS)
-                .map_err(bad)?;
-            (from.si, to, n)
+                (f, t, n - 1)
+            }
+            crate::range::Spec::Step(f, t, st) => {
+                let from = stated(f, "--vary FROM")?;
+                let to = stated(t, "--vary TO")?.si;
+                // A step is a difference: a bare one is in FROM's unit (scale
+                // only, so 5 after 59 degF is 5 degF of difference).
+                let step = match st.trim().parse::<f64>() {
+                    Ok(v) => v * from.unit.scale,
+                    Err(_) => {
+                        let dq = if q == Quantity::Temperature {
+                            Quantity::TemperatureDifference
+                        } else {
+                            q
+                        };
+                        units::parse(st, dq, "--vary STEP")
+                            .map_err(Failure::bad)?
+                            .si
+                    }
+                };
+                let n =
+                    crate::range::intervals(from.si, to, step, part, MAX_POINTS).map_err(bad)?;
+                (from.si, to, n)
+            }
+        };
+        points = points.saturating_add(seg.2 + 1);
+        if points > MAX_POINTS {
+            return Err(bad(format!("at most {MAX_POINTS} points in all")));
         }
+        segments.push(seg);
+    }
+    // The i-th value: find its segment (a handful), then its place there.
+    let starts: Vec<usize> = segments
+        .iter()
+        .scan(0usize, |acc, s| {
+            let at = *acc;
+            *acc += s.2 + 1;
+            Some(at)
+        })
+        .collect();
+    let value_at = |i: usize| {
+        let k = starts.partition_point(|&s| s <= i).saturating_sub(1);
+        let (f, t, n) = segments[k];
+        crate::range::value(f, t, n, i - starts[k])
     };
     let report: Vec<String> = a
         .report
@@ -130,8 +159,8 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     sweep::stream(
         &engine,
         path,
-        steps + 1,
-        |i| crate::range::value(from, to, steps, i),
+        points,
+        value_at,
         &report,
         sweep::BATCH,
         |rows| -> Result<(), Failure> {
