@@ -94,7 +94,7 @@ pub fn compress<G: Thermo + ?Sized>(
         )?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi + rl / eta, t_ideal)?,
     };
-    stage(gas, tt_in, tt_out, pr, Some(t_ideal), true)
+    stage_from(gas, &s1, tt_out, pr, ln_pr, t_ideal, h_ideal, true)
 }
 
 /// Efficiencies and work of a compression from measured exit temperature.
@@ -134,7 +134,7 @@ pub fn expand<G: Thermo + ?Sized>(
         )?,
         Efficiency::Polytropic(_) => invert_phi(gas, s1.phi - eta * rl, t_ideal)?,
     };
-    stage(gas, tt_in, tt_out, pr, Some(t_ideal), false)
+    stage_from(gas, &s1, tt_out, pr, ln_pr, t_ideal, h_ideal, false)
 }
 
 /// Efficiencies and work of an expansion from measured exit temperature.
@@ -159,17 +159,44 @@ fn stage<G: Thermo + ?Sized>(
 ) -> Result<Stage, FlowError> {
     let pr = check_ratio(pr)?;
     let s1 = gas.state(tt_in)?;
+    let r = gas.r();
+    let sense = if compression { 1.0 } else { -1.0 };
+    let ln_pr = pr.ln();
+    let (t_ideal, h_ideal) = match t_ideal {
+        Some(t) => (t, gas.h(t)?),
+        None => {
+            let t = invert_phi(
+                gas,
+                s1.phi + sense * r * ln_pr,
+                tt_in * (sense * ln_pr * r / s1.cp).exp(),
+            )?;
+            (t, gas.h(t)?)
+        }
+    };
+    stage_from(gas, &s1, tt_out, pr, ln_pr, t_ideal, h_ideal, compression)
+}
+
+/// [`stage`] from what the caller has already evaluated: the inlet state,
+/// ln of the pressure ratio, and the ideal exit temperature with its
+/// enthalpy (one state less, one enthalpy less, one logarithm less).
+#[allow(clippy::too_many_arguments)]
+fn stage_from<G: Thermo + ?Sized>(
+    gas: &G,
+    s1: &crate::gas::ThermoPoint,
+    tt_out: f64,
+    pr: f64,
+    ln_pr: f64,
+    t_ideal: f64,
+    h_ideal: f64,
+    compression: bool,
+) -> Result<Stage, FlowError> {
     let s2 = gas.state(tt_out)?;
     let r = gas.r();
     // +1 for a compression (entropy function rises along the isentrope with
     // the pressure), -1 for an expansion.
     let sense = if compression { 1.0 } else { -1.0 };
-    let rl = r * pr.ln();
-    let t_ideal = match t_ideal {
-        Some(t) => t,
-        None => invert_phi(gas, s1.phi + sense * rl, tt_in * pr.powf(sense * r / s1.cp))?,
-    };
-    let ideal_work = sense * (gas.h(t_ideal)? - s1.h);
+    let rl = r * ln_pr;
+    let ideal_work = sense * (h_ideal - s1.h);
     let work = sense * (s2.h - s1.h);
     if work <= 0.0 && pr > 1.0 {
         return Err(FlowError::BadInput {
@@ -230,12 +257,16 @@ pub fn expand_for_work<G: Thermo + ?Sized>(
                 value: work,
                 why: "the ideal expansion leaves the gas data range: too much work for this efficiency",
             })?;
-            (s1.phi - gas.phi(t_ideal)?, Some(t_ideal))
+            (s1.phi - gas.phi(t_ideal)?, Some((t_ideal, h_ideal)))
         }
         Efficiency::Polytropic(_) => ((s1.phi - gas.phi(tt_out)?) / eta, None),
     };
     let pr = (rl / r).exp();
-    stage(gas, tt_in, tt_out, pr, t_ideal, false)
+    match t_ideal {
+        // The ideal exit's enthalpy is the inversion's own target.
+        Some((t, h)) => stage_from(gas, &s1, tt_out, pr, rl / r, t, h, false),
+        None => stage(gas, tt_in, tt_out, pr, None, false),
+    }
 }
 
 /// Compression that absorbs `work` J/kg at efficiency `eff`.
