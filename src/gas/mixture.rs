@@ -151,6 +151,14 @@ impl Thermo for Mixture {
         Ok(Polynomial::cp_of(self.poly.coeffs(t)?, t))
     }
     #[inline]
+    fn dcp(&self, t: f64) -> Result<f64, GasError> {
+        let a = self.poly.coeffs(t)?;
+        let ti = 1.0 / t;
+        Ok(-2.0 * a[0] * ti * ti * ti - a[1] * ti * ti
+            + a[3]
+            + t * (2.0 * a[4] + t * (3.0 * a[5] + t * 4.0 * a[6])))
+    }
+    #[inline]
     fn h(&self, t: f64) -> Result<f64, GasError> {
         let a = self.poly.coeffs(t)?;
         // The logarithm only enters through a2, zero for 7-coefficient data.

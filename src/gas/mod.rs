@@ -98,6 +98,9 @@ pub trait Thermo {
     fn h(&self, t: f64) -> Result<f64, GasError>;
     /// Entropy function phi(T) = integral of cp/T dT, J/(kg K).
     fn phi(&self, t: f64) -> Result<f64, GasError>;
+    /// Slope of cp with temperature, J/(kg K^2): what an exact Newton step
+    /// needs where gamma varies with T.
+    fn dcp(&self, t: f64) -> Result<f64, GasError>;
     /// Ratio of specific heats at `t`.
     fn gamma(&self, t: f64) -> Result<f64, GasError> {
         let cp = self.cp(t)?;
@@ -203,6 +206,10 @@ impl Thermo for PerfectGas {
     fn phi(&self, t: f64) -> Result<f64, GasError> {
         Ok(self.cp * positive(t)?.ln())
     }
+    fn dcp(&self, t: f64) -> Result<f64, GasError> {
+        positive(t)?;
+        Ok(0.0)
+    }
     fn gamma(&self, t: f64) -> Result<f64, GasError> {
         positive(t)?;
         Ok(self.gamma)
@@ -272,6 +279,12 @@ impl Thermo for Gas {
         match self {
             Gas::Perfect(g) => g.phi(t),
             Gas::Thermal(m) => m.phi(t),
+        }
+    }
+    fn dcp(&self, t: f64) -> Result<f64, GasError> {
+        match self {
+            Gas::Perfect(g) => g.dcp(t),
+            Gas::Thermal(m) => m.dcp(t),
         }
     }
     fn gamma(&self, t: f64) -> Result<f64, GasError> {
