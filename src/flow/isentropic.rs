@@ -434,10 +434,16 @@ pub mod general {
         positive("static pressure", p)?;
         crate::flow::non_negative("velocity", v)?;
         let s = gas.state(t)?;
-        let tt = invert_h(gas, s.h + 0.5 * v * v, t + 0.5 * v * v / s.cp)?;
-        let st = gas.state(tt)?;
         let r = gas.r();
-        let pt = p * ((st.phi - s.phi) / r).exp();
+        // At rest the totals are the statics, exactly (a test stand's free
+        // stream): no inversion.
+        let (tt, pt) = if v == 0.0 {
+            (t, p)
+        } else {
+            let tt = invert_h(gas, s.h + 0.5 * v * v, t + 0.5 * v * v / s.cp)?;
+            let st = gas.state(tt)?;
+            (tt, p * ((st.phi - s.phi) / r).exp())
+        };
         let a = (s.cp / (s.cp - r) * r * t).sqrt();
         Ok(FlowState {
             tt,
