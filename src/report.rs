@@ -54,11 +54,28 @@ pub fn csv_key(c: &Column) -> String {
 
 /// A CSV cell: a number to [`precision`] significant figures.
 pub fn csv_cell(c: &Cell) -> String {
+    let mut s = String::new();
+    csv_cell_to(&mut s, c);
+    s
+}
+
+/// [`csv_cell`] into a buffer (cleared first).
+fn csv_cell_to(buf: &mut String, c: &Cell) {
+    buf.clear();
     match c {
-        Cell::Num(v) => sig(*v, precision()),
-        Cell::Text(t) => t.clone(),
-        Cell::Empty => String::new(),
+        Cell::Num(v) => sig_to(buf, *v, precision()),
+        Cell::Text(t) => buf.push_str(t),
+        Cell::Empty => {}
     }
+}
+
+/// One CSV row through one reusable buffer.
+fn csv_row<W: Write>(w: &mut csv::Writer<W>, row: &[Cell], buf: &mut String) -> csv::Result<()> {
+    for c in row {
+        csv_cell_to(buf, c);
+        w.write_field(buf.as_bytes())?;
+    }
+    w.write_record(None::<&[u8]>)
 }
 
 /// A column: machine key, human label, unit shown in text output.
@@ -174,12 +191,18 @@ pub struct JsonPrinter;
 /// A number with `sig` significant digits, without exponent for ordinary
 /// magnitudes and without "-0".
 pub fn sig(v: f64, sig: usize) -> String {
+    let mut out = String::new();
+    sig_to(&mut out, v, sig);
+    out
+}
+
+/// [`sig`] appended to `out` (no allocation on the fast path: a sweep
+/// writes millions of cells through one buffer).
+pub fn sig_to(out: &mut String, v: f64, sig: usize) {
+    use std::fmt::Write as _;
     if v == 0.0 || !v.is_finite() {
-        return if v.is_finite() {
-            "0".to_string()
-        } else {
-            "-".to_string()
-        };
+        out.push_str(if v.is_finite() { "0" } else { "-" });
+        return;
     }
     let mut mag = v.abs().log10().floor() as i32;
     // Rounding to `sig` digits can carry into the next decade:
@@ -189,16 +212,15 @@ pub fn sig(v: f64, sig: usize) -> String {
         mag += 1;
     }
     if !(-4..=9).contains(&mag) {
-        return format!("{:.*e}", sig.saturating_sub(1), v);
+        let _ = write!(out, "{:.*e}", sig.saturating_sub(1), v);
+        return;
     }
     // Up to 12 figures the digits come from one scaled integer (a few
     // dozen instructions; a sweep prints millions of cells); next to a
     // rounding tie and beyond 12 figures the exact conversion is used, so
     // the result is always that of the exact conversion.
-    if sig <= 12
-        && let Some(s) = fast_sig(v, sig, mag)
-    {
-        return s;
+    if sig <= 12 && fast_sig(out, v, sig, mag) {
+        return;
     }
     let decimals = (sig as i32 - 1 - mag).max(0) as usize;
     // Whole numbers longer than `sig` digits are rounded too (1974632.3 to
@@ -211,17 +233,18 @@ pub fn sig(v: f64, sig: usize) -> String {
     };
     let s = format!("{v:.decimals$}");
     if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
-        s[1..].to_string()
+        out.push_str(&s[1..]);
     } else {
-        s
+        out.push_str(&s);
     }
 }
 
 /// [`sig`] for `sig <= 12` and a decade `mag` in -4..=9, through one
-/// rounded integer of `sig` digits; None next to a rounding tie, where the
-/// one rounding of the scaled product could decide the other way from the
-/// exact decimal value (the caller then converts exactly).
-fn fast_sig(v: f64, sig: usize, mag: i32) -> Option<String> {
+/// rounded integer of `sig` digits, appended to `out`; false (nothing
+/// written) next to a rounding tie, where the one rounding of the scaled
+/// product could decide the other way from the exact decimal value (the
+/// caller then converts exactly).
+fn fast_sig(out: &mut String, v: f64, sig: usize, mag: i32) -> bool {
     let d = sig as i32 - 1 - mag;
     let a = v.abs();
     // Exact powers of ten up to 1e22: one rounding in the product.
@@ -231,16 +254,32 @@ fn fast_sig(v: f64, sig: usize, mag: i32) -> Option<String> {
         a / 10f64.powi(-d)
     };
     if (scaled - scaled.floor() - 0.5).abs() < 1e-6 {
-        return None;
+        return false;
     }
-    let m = scaled.round() as u64;
-    let mut out = String::with_capacity(sig + 8);
-    if v < 0.0 && m != 0 {
+    let mut m = scaled.round() as u64;
+    // The digits of m, on the stack.
+    let mut buf = [0u8; 20];
+    let mut n = 0;
+    loop {
+        buf[19 - n] = b'0' + (m % 10) as u8;
+        n += 1;
+        m /= 10;
+        if m == 0 {
+            break;
+        }
+    }
+    let digits = &buf[20 - n..];
+    let is_zero = digits.iter().all(|&c| c == b'0');
+    if v < 0.0 && !is_zero {
         out.push('-');
     }
-    let digits = m.to_string();
+    let push = |out: &mut String, bytes: &[u8]| {
+        for &b in bytes {
+            out.push(b as char);
+        }
+    };
     if d <= 0 {
-        out.push_str(&digits);
+        push(out, digits);
         for _ in 0..(-d) {
             out.push('0');
         }
@@ -251,15 +290,15 @@ fn fast_sig(v: f64, sig: usize, mag: i32) -> Option<String> {
             for _ in 0..(d - digits.len()) {
                 out.push('0');
             }
-            out.push_str(&digits);
+            push(out, digits);
         } else {
             let (whole, frac) = digits.split_at(digits.len() - d);
-            out.push_str(whole);
+            push(out, whole);
             out.push('.');
-            out.push_str(frac);
+            push(out, frac);
         }
     }
-    Some(out)
+    true
 }
 
 fn text_cell(c: &Cell) -> String {
@@ -409,8 +448,9 @@ impl Streamer {
                     w.write_record(chunk.columns.iter().map(csv_key))?;
                     self.layout = Some((Vec::new(), Vec::new()));
                 }
+                let mut buf = String::new();
                 for r in &chunk.rows {
-                    w.write_record(r.iter().map(csv_cell))?;
+                    csv_row(&mut w, r, &mut buf)?;
                 }
                 w.flush()?;
             }
@@ -449,8 +489,9 @@ impl Printer for CsvPrinter {
     fn print(&self, table: &Table, out: &mut dyn Write) -> io::Result<()> {
         let mut w = csv::Writer::from_writer(out);
         w.write_record(table.columns.iter().map(csv_key))?;
+        let mut buf = String::new();
         for r in &table.rows {
-            w.write_record(r.iter().map(csv_cell))?;
+            csv_row(&mut w, r, &mut buf)?;
         }
         w.flush()?;
         Ok(())
