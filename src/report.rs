@@ -208,7 +208,7 @@ pub fn sig_to(out: &mut String, v: f64, sig: usize) {
     // Rounding to `sig` digits can carry into the next decade:
     // 0.99999999999 is 1.00000 to six digits, not 1.000000.
     let d = sig as i32 - 1 - mag;
-    if (v.abs() * 10f64.powi(d)).round() >= 10f64.powi(sig as i32) {
+    if scale10(v.abs(), d).round() >= scale10(1.0, sig as i32) {
         mag += 1;
     }
     if !(-4..=9).contains(&mag) {
@@ -239,6 +239,20 @@ pub fn sig_to(out: &mut String, v: f64, sig: usize) {
     }
 }
 
+/// `a` times 10^d: through an exact power of ten from a table (a multiply
+/// or a divide, one rounding) where |d| <= 22, else `powi`.
+fn scale10(a: f64, d: i32) -> f64 {
+    const P: [f64; 23] = [
+        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+        1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+    ];
+    match d {
+        0..=22 => a * P[d as usize],
+        -22..=-1 => a / P[(-d) as usize],
+        _ => a * 10f64.powi(d),
+    }
+}
+
 /// [`sig`] for `sig <= 12` and a decade `mag` in -4..=9, through one
 /// rounded integer of `sig` digits, appended to `out`; false (nothing
 /// written) next to a rounding tie, where the one rounding of the scaled
@@ -246,13 +260,8 @@ pub fn sig_to(out: &mut String, v: f64, sig: usize) {
 /// caller then converts exactly).
 fn fast_sig(out: &mut String, v: f64, sig: usize, mag: i32) -> bool {
     let d = sig as i32 - 1 - mag;
-    let a = v.abs();
     // Exact powers of ten up to 1e22: one rounding in the product.
-    let scaled = if d >= 0 {
-        a * 10f64.powi(d)
-    } else {
-        a / 10f64.powi(-d)
-    };
+    let scaled = scale10(v.abs(), d);
     if (scaled - scaled.floor() - 0.5).abs() < 1e-6 {
         return false;
     }
