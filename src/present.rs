@@ -111,13 +111,7 @@ pub fn stations_table(engine: &Engine, system: UnitSystem) -> Table {
 pub fn with_unit(si: f64, q: Quantity, system: UnitSystem) -> String {
     let u = unit_of(q, system);
     let digits = crate::report::prose_digits(units::display_digits(q, system));
-    let mut v = units::from_si(si, u);
-    // A unit with an offset turns, say, 255.3722 K into 1e-14 degF by
-    // rounding; print that as the zero it is.
-    if u.offset != 0.0 && v.abs() <= 1e-9 * (u.offset / u.scale).abs() {
-        v = 0.0;
-    }
-    let n = crate::report::sig(v, digits);
+    let n = crate::report::sig(units::shown_in(si, u), digits);
     if u.symbol.is_empty() {
         n
     } else {

@@ -174,10 +174,10 @@ fn column_at(rel: Relation, g: &TableGas, m: f64, idx: usize) -> Option<f64> {
 
 /// Every Mach number in the relation's range at which column `idx` equals
 /// `target`: the column is sampled, each sign change of (column - target)
-/// between neighbouring samples is bracketed and refined by Brent's method
-/// to a few parts in 1e15, and a sample that hits the value exactly is a
-/// root itself. Ascending.
-pub fn invert(rel: Relation, g: &TableGas, idx: usize, target: f64) -> Result<Vec<f64>, FlowError> {
+/// between neighbouring samples is bracketed and refined by the Illinois
+/// method to adjacent doubles, and a sample that hits the value exactly is
+/// a root itself. Ascending; empty where no Mach number reaches the value.
+pub fn invert(rel: Relation, g: &TableGas, idx: usize, target: f64) -> Vec<f64> {
     let (lo, hi) = mach_range(rel);
     let xs = samples(lo, hi);
     let f = |m: f64| column_at(rel, g, m, idx).map(|v| v - target);
@@ -207,7 +207,7 @@ pub fn invert(rel: Relation, g: &TableGas, idx: usize, target: f64) -> Result<Ve
         prev = Some((x, y));
     }
     roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs().max(1.0));
-    Ok(roots)
+    roots
 }
 
 /// Refine a bracketed sign change of `f` on `[a, b]` by the Illinois
@@ -255,15 +255,6 @@ fn refine(
     Some(if fa.abs() < fb.abs() { a } else { b })
 }
 
-/// One row of a table, or the reason it has none.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RowOutcome {
-    /// The cells (the given value in its column when the row failed).
-    pub cells: Vec<Cell>,
-    /// Why the row could not be computed.
-    pub problem: Option<String>,
-}
-
 /// Build the table: every row is computed on its own, a row that cannot be
 /// computed keeps its place with its given value and its reason in the
 /// `problem` column (the last). Returns the table and the number of rows
@@ -274,12 +265,13 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
     cols.push(Column::new("problem", "note", ""));
     let mut t = Table::new(cols);
     let mut failed = 0;
-    let mut push = |t: &mut Table, r: RowOutcome| {
-        let mut cells = r.cells;
-        failed += usize::from(r.problem.is_some());
-        cells.push(r.problem.map_or(Cell::Empty, Cell::Text));
+    // A row is its cells and, where it failed, the reason (the last column).
+    let mut push = |t: &mut Table, mut cells: Vec<Cell>, problem: Option<String>| {
+        failed += usize::from(problem.is_some());
+        cells.push(problem.map_or(Cell::Empty, Cell::Text));
         t.rows.push(cells);
     };
+    // A failed row keeps the given value in its own column.
     let blank = |idx: usize, v: f64| {
         let mut c = vec![Cell::Empty; keys.len()];
         c[idx] = Cell::from(v);
@@ -311,38 +303,21 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
     for &v in values {
         if idx == 0 {
             match row(rel, g, v) {
-                Ok(cells) => push(
-                    &mut t,
-                    RowOutcome {
-                        cells,
-                        problem: None,
-                    },
-                ),
+                Ok(cells) => push(&mut t, cells, None),
                 Err(e) => push(
                     &mut t,
-                    RowOutcome {
-                        cells: blank(0, v),
-                        problem: Some(format!("at {label} {}: {e}", short(v))),
-                    },
+                    blank(0, v),
+                    Some(format!("at {label} {}: {e}", short(v))),
                 ),
             }
             continue;
         }
-        let fail = |why: String| RowOutcome {
-            cells: blank(idx, v),
-            problem: Some(format!("{label} = {}: {why}", short(v))),
-        };
+        let why = |why: String| Some(format!("{label} = {}: {why}", short(v)));
         if !v.is_finite() {
-            push(&mut t, fail("not a finite number".into()));
+            push(&mut t, blank(idx, v), why("not a finite number".into()));
             continue;
         }
-        let roots = match invert(rel, g, idx, v) {
-            Ok(r) => r,
-            Err(e) => {
-                push(&mut t, fail(e.to_string()));
-                continue;
-            }
-        };
+        let roots = invert(rel, g, idx, v);
         let sub: Vec<f64> = roots.iter().copied().filter(|m| *m < 1.0).collect();
         let sup: Vec<f64> = roots.iter().copied().filter(|m| *m >= 1.0).collect();
         let chosen: Vec<f64> = match branch {
@@ -358,7 +333,8 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
                 };
                 push(
                     &mut t,
-                    fail(format!(
+                    blank(idx, v),
+                    why(format!(
                         "reached below Mach 1 (M {}) and above (M {}): choose with --branch subsonic, supersonic or both",
                         list(&sub),
                         list(&sup)
@@ -369,7 +345,7 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
             Pick::Unstated => roots.clone(),
         };
         if chosen.is_empty() {
-            let why = if roots.is_empty() {
+            let reason = if roots.is_empty() {
                 let (lo, hi) = mach_range(rel);
                 format!("not reached at any Mach number from {lo} to {hi}")
             } else {
@@ -378,19 +354,13 @@ pub fn build(rel: Relation, g: &TableGas, rows: &Rows) -> Result<(Table, usize),
                     crate::report::sig(roots[0], 6)
                 )
             };
-            push(&mut t, fail(why));
+            push(&mut t, blank(idx, v), why(reason));
             continue;
         }
         for m in chosen {
             match row(rel, g, m) {
-                Ok(cells) => push(
-                    &mut t,
-                    RowOutcome {
-                        cells,
-                        problem: None,
-                    },
-                ),
-                Err(e) => push(&mut t, fail(e.to_string())),
+                Ok(cells) => push(&mut t, cells, None),
+                Err(e) => push(&mut t, blank(idx, v), why(e.to_string())),
             }
         }
     }
@@ -596,7 +566,7 @@ mod tests {
             gas: Gas::Perfect(PerfectGas::AIR),
             tt: 288.15,
         };
-        let m = invert(Relation::Isentropic, &g, 4, 1.6875).unwrap();
+        let m = invert(Relation::Isentropic, &g, 4, 1.6875);
         assert_eq!(m.len(), 2, "{m:?}");
         assert!((m[1] - 2.0).abs() < 1e-4, "{m:?}");
         assert!(m[0] < 1.0);

@@ -1091,17 +1091,22 @@ pub fn format(si: f64, quantity: Quantity, system: UnitSystem) -> String {
 /// (below 1e-4 or from 1e9) are printed as "1.2345e-5". The result parses
 /// back with [`parse`].
 pub fn format_in(si: f64, unit: &Unit, digits: usize) -> String {
-    let mut value = from_si(si, unit);
-    // A unit with an offset turns, say, 255.3722 K into 1e-14 degF by
-    // rounding; print that as the zero it is.
-    if unit.offset != 0.0 && value.abs() <= 1e-9 * (unit.offset / unit.scale).abs() {
-        value = 0.0;
-    }
-    let number = format_significant(value, digits);
+    let number = format_significant(shown_in(si, unit), digits);
     if unit.symbol.is_empty() {
         number
     } else {
         format!("{number} {}", unit.symbol)
+    }
+}
+
+/// An SI value in `unit` for printing: a unit with an offset turns, say,
+/// 255.3722 K into 1e-14 degF by rounding; that is printed as the zero it is.
+pub fn shown_in(si: f64, unit: &Unit) -> f64 {
+    let value = from_si(si, unit);
+    if unit.offset != 0.0 && value.abs() <= 1e-9 * (unit.offset / unit.scale).abs() {
+        0.0
+    } else {
+        value
     }
 }
 

@@ -979,14 +979,23 @@ fn every_given_of_every_demo_is_reached_through_its_handle() {
                 .unwrap_or_else(|err| panic!("{name} {path}: {err}"));
             assert_eq!(e.given_by(&h), Some(*si), "{name} {path}");
         }
-        // A changed value through a handle lands where the path says.
-        let (path, _, _, si) = givens.last().unwrap().clone();
-        let h = e.handle(&path).unwrap();
-        let v = if si == 0.0 { 1e-3 } else { si * 1.001 };
-        if e.set_by(&h, v).is_ok() {
-            let now = e.book().givens();
-            let got = now.iter().find(|g| g.0 == path).unwrap().3;
-            assert_eq!(got, v, "{name} {path}");
+        // A changed value through a handle lands where the path says (a
+        // value its bounds refuse is left out; most givens take 0.1 % more).
+        let mut landed = 0;
+        for (path, _, _, si) in &givens {
+            let h = e.handle(path).unwrap();
+            let v = if *si == 0.0 { 1e-3 } else { si * 1.001 };
+            if e.set_by(&h, v).is_ok() {
+                let now = e.book().givens();
+                let got = now.iter().find(|g| &g.0 == path).unwrap().3;
+                assert_eq!(got, v, "{name} {path}");
+                landed += 1;
+            }
         }
+        assert!(
+            landed * 2 > givens.len(),
+            "{name}: {landed} of {}",
+            givens.len()
+        );
     }
 }

@@ -57,12 +57,13 @@ pub(super) struct Args {
     /// Thermally perfect gas.
     #[arg(long)]
     gas: Option<GasArg>,
-    /// Fuel-air ratio for --gas products (kg fuel per kg dry air).
-    #[arg(long, default_value_t = 0.0, conflicts_with = "gamma")]
-    far: f64,
-    /// Fuel hydrogen-to-carbon molar ratio for --gas products.
-    #[arg(long, default_value_t = 1.92, conflicts_with = "gamma")]
-    hc: f64,
+    /// Fuel-air ratio for --gas products (kg fuel per kg dry air; default 0).
+    #[arg(long, conflicts_with = "gamma")]
+    far: Option<f64>,
+    /// Fuel hydrogen-to-carbon molar ratio for --gas products (default 1.92,
+    /// a kerosene).
+    #[arg(long, conflicts_with = "gamma")]
+    hc: Option<f64>,
     /// Total temperature for a thermally perfect gas ("1500", "1500 K", "2240 degF").
     #[arg(long, default_value = "288.15 K")]
     tt: String,
@@ -150,9 +151,12 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
         (Some(g), _) => Gas::Perfect(PerfectGas::new(g, a.r).map_err(Failure::bad)?),
         (None, Some(GasArg::Air)) => Gas::Thermal(Composition::dry_air().mixture()),
         (None, Some(GasArg::Products)) => {
-            let fuel = Fuel::new(a.hc).map_err(Failure::bad)?;
+            let fuel = match a.hc {
+                Some(hc) => Fuel::new(hc).map_err(Failure::bad)?,
+                None => Fuel::KEROSENE,
+            };
             let c = Composition::dry_air()
-                .burnt(a.far, fuel)
+                .burnt(a.far.unwrap_or(0.0), fuel)
                 .map_err(Failure::bad)?;
             Gas::Thermal(c.mixture())
         }
@@ -183,7 +187,7 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     if a.deflection.is_some() && !matches!(rel, Relation::ObliqueShock(_)) {
         return Err(Failure::bad("--deflection is for oblique-shock only"));
     }
-    if !matches!(a.gas, Some(GasArg::Products)) && (a.far != 0.0 || a.hc != 1.92) {
+    if !matches!(a.gas, Some(GasArg::Products)) && (a.far.is_some() || a.hc.is_some()) {
         return Err(Failure::bad(
             "--far and --hc describe --gas products; air has no fuel",
         ));

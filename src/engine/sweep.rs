@@ -113,21 +113,12 @@ pub fn stream<E: From<BookError>>(
     Ok(())
 }
 
-/// The i-th of `n` equal steps from `from` to `to` inclusive.
-pub fn step_value(from: f64, to: f64, steps: usize, i: usize) -> f64 {
-    if steps == 0 {
-        from
-    } else {
-        from + (to - from) * i as f64 / steps as f64
-    }
-}
-
 /// `n` equal steps from `from` to `to` inclusive (n + 1 values).
 pub fn linspace(from: f64, to: f64, steps: usize) -> Vec<f64> {
     if steps == 0 {
         return vec![from];
     }
     (0..=steps)
-        .map(|i| step_value(from, to, steps, i))
+        .map(|i| crate::range::value(from, to, steps, i))
         .collect()
 }
