@@ -2,6 +2,7 @@
 
 use super::{Failure, OutFormat, print_table};
 use crate::gas::{Composition, Fuel, Gas, PerfectGas};
+use crate::report::Cell;
 use crate::table::{self, Pick, Relation, Rows, TableGas};
 use crate::units::{self, Quantity};
 use clap::ValueEnum;
@@ -195,10 +196,18 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (mut t, failed) = table::build(rel, &TableGas { gas, tt }, &rows).map_err(Failure::bad)?;
     // Aligned text shows the note column only when a row has a note; CSV
     // and JSON always carry `problem`, so a reader's columns never move.
-    if a.format == OutFormat::Text && failed == 0 {
-        t.columns.pop();
+    if a.format == OutFormat::Text {
         for r in &mut t.rows {
-            r.pop();
+            if failed == 0 {
+                r.pop();
+            } else if let Some(c @ Cell::Empty) = r.last_mut() {
+                // A row without a note has a blank note, not "-" (which
+                // reads as "not defined").
+                *c = Cell::Text(String::new());
+            }
+        }
+        if failed == 0 {
+            t.columns.pop();
         }
     }
     print_table(&t, a.format)?;
