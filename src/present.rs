@@ -94,6 +94,10 @@ pub fn stations_table(engine: &Engine, system: UnitSystem) -> Table {
                     ));
                 }
             }
+            StationStatus::Withheld(why) => {
+                row.push(Cell::Text(format!("(withheld: {why})")));
+                row.extend(STATION_COLUMNS.iter().skip(1).map(|_| Cell::Empty));
+            }
             StationStatus::Failed(p) | StationStatus::Blocked(p) => {
                 row.push(Cell::Text(format!("(problem in {p})")));
                 row.extend(STATION_COLUMNS.iter().skip(1).map(|_| Cell::Empty));

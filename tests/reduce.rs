@@ -1054,12 +1054,59 @@ fn malformed_scans_touch_only_their_own_rows() {
         );
         assert!(s.flags[0].contains("left out"), "{:?}", s.flags);
     }
+    // Row 2's line was split with its quote kept as written (flagged); the
+    // quoted cell is not a number, so the scan has a problem as well.
+    assert!(
+        out[1].flags[0].contains("column T2B: unterminated quote"),
+        "{:?}",
+        out[1].flags
+    );
     for s in &out {
-        if ![5, 6, 7].contains(&s.row) {
+        if ![2, 5, 6, 7].contains(&s.row) {
             assert!(s.flags.is_empty(), "row {}: {:?}", s.row, s.flags);
         }
     }
     assert_good_rows_reduced(&out, &[2, 3, 4, 8, 9]);
+}
+
+/// A stray quote in a column the channel map does not read (an operator's
+/// note) loses nothing: the scan is reduced to its truth and carries a flag
+/// naming the column; a quote that also hides a delimiter cannot be split
+/// into the header's fields and stays a problem of its own scan.
+#[test]
+fn unterminated_quote_in_a_note_column_is_flagged_not_dropped() {
+    let engine = engine_of(demo_book());
+    let mut header: Vec<&str> = HEADER.to_vec();
+    header.push("NOTE");
+    let mut rows = good_rows(4);
+    for r in rows.iter_mut() {
+        r.push("steady".into());
+    }
+    rows[1][header.len() - 1] = "\"valve at 3".into();
+    // Row 4: the note hides a delimiter behind its unpaired quote.
+    rows[3][header.len() - 1] = "\"open, then".into();
+    let text = csv_text(&header, &rows);
+    let (r, out) = reduce_text(&engine, &text, &strings(&[ETA]), &Options::default());
+    assert_eq!(r.unwrap(), 4);
+    assert!(out[1].problems.is_empty(), "{:?}", out[1].problems);
+    assert!(
+        out[1]
+            .flags
+            .iter()
+            .any(|f| f.contains("column NOTE: unterminated quote")),
+        "{:?}",
+        out[1].flags
+    );
+    assert!(
+        out[3]
+            .problems
+            .iter()
+            .any(|p| p.contains("unterminated quote")),
+        "{:?}",
+        out[3].problems
+    );
+    assert_eq!(out[3].values[0], None);
+    assert_good_rows_reduced(&out, &[4]);
 }
 
 /// Weights whose sum overflows (1e308 and 1.5e308, in the demo's ratios

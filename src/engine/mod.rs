@@ -77,6 +77,9 @@ pub enum StationStatus<'a> {
     Failed(&'a str),
     /// A process upstream failed (name).
     Blocked(&'a str),
+    /// The whole workbook's values are withheld (a recorded scan that could
+    /// not be applied): the reason.
+    Withheld(&'a str),
 }
 
 /// The outcome of one process in the last pass.
@@ -201,6 +204,8 @@ pub struct Engine {
     goals: Vec<GoalOutcome>,
     summary: Summary,
     evaluations: u64,
+    /// Why no value is to be shown (see [`Engine::withhold`]).
+    withheld: Option<String>,
 }
 
 fn gas_model(g: &GasSettings) -> Result<GasModel, String> {
@@ -519,6 +524,7 @@ impl Engine {
             goals: Vec::new(),
             summary: Summary::default(),
             evaluations: 0,
+            withheld: None,
             book,
         };
         let bad = e.check_references();
@@ -543,6 +549,33 @@ impl Engine {
     pub fn replace_book(&mut self, book: Workbook) -> Result<(), Vec<BookError>> {
         *self = Engine::new(book)?;
         Ok(())
+    }
+
+    /// Withhold every computed value (`Some(reason)`), or compute again
+    /// (`None`). While withheld no station, process, figure or summary value
+    /// is reported, edits still change the workbook, and the reason is the
+    /// first problem. The scan browser withholds the values of a scan it
+    /// cannot apply, so the screen never shows another scan's numbers.
+    pub fn withhold(&mut self, why: Option<String>) {
+        match why {
+            Some(w) => {
+                self.withheld = Some(w);
+                self.nodes.iter_mut().for_each(|n| *n = None);
+                self.summary = Summary::default();
+                self.goals.clear();
+            }
+            None => {
+                if self.withheld.take().is_some() {
+                    self.dirty.iter_mut().for_each(|d| *d = true);
+                    self.recompute();
+                }
+            }
+        }
+    }
+
+    /// Why the values are withheld, if they are.
+    pub fn withheld(&self) -> Option<&str> {
+        self.withheld.as_deref()
     }
 
     /// Set a given from typed text and recompute what depends on it.
@@ -683,12 +716,15 @@ impl Engine {
 
     fn recompute(&mut self) {
         self.run_nodes();
-        if !self.book.goals.is_empty() {
+        if !self.book.goals.is_empty() && self.withheld.is_none() {
             self.solve_goals();
         }
     }
 
     fn run_nodes(&mut self) {
+        if self.withheld.is_some() {
+            return;
+        }
         // The changed marks are a buffer kept between runs (no allocation
         // per recompute); a result replaces the old one in its box.
         let mut changed = std::mem::take(&mut self.changed);
@@ -1057,6 +1093,12 @@ impl Engine {
     /// Every problem: processes that failed, goals that could not be met.
     pub fn problems(&self) -> Vec<Problem> {
         let mut v = Vec::new();
+        if let Some(why) = &self.withheld {
+            v.push(Problem {
+                place: "values withheld".to_string(),
+                message: why.clone(),
+            });
+        }
         // A bad ambient block or gas setting fails every process that reads
         // it: report it once, at its source.
         for (place, text) in [
@@ -1125,6 +1167,9 @@ impl Engine {
 
     /// The status of a station by index (file order).
     pub fn station_status(&self, s: usize) -> StationStatus<'_> {
+        if let Some(why) = &self.withheld {
+            return StationStatus::Withheld(why);
+        }
         let p = self.graph.producer[s];
         match self.nodes[p].as_ref() {
             Some(NodeOut::Done(_)) => match self.station_value(s) {

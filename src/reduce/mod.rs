@@ -294,6 +294,16 @@ impl Plan {
         Ok(Plan { channels, baro })
     }
 
+    /// The scan columns (indices into the header) that feed a given, and
+    /// the unit they are read in; the barometer is `"barometer"`.
+    pub fn columns_of(&self, given: &str) -> Option<(&[usize], &'static str)> {
+        self.channels
+            .iter()
+            .chain(self.baro.iter())
+            .find(|c| c.given == given)
+            .map(|c| (c.cols.as_slice(), c.unit.symbol))
+    }
+
     /// The givens fed, in channel order.
     pub fn givens(&self) -> Vec<&str> {
         self.channels.iter().map(|c| c.given.as_str()).collect()
@@ -333,8 +343,13 @@ impl Plan {
                     Ok(v) if v.is_finite() => v,
                     _ => {
                         problems.push(format!(
-                            "row {row}, column {}: \"{cell}\" is not a number",
-                            col(i)
+                            "row {row}, column {}: \"{cell}\" is not a number{}",
+                            col(i),
+                            if cell.matches('"').count() % 2 == 1 {
+                                " (an unterminated quote)"
+                            } else {
+                                ""
+                            }
                         ));
                         bad = true;
                         continue;
@@ -865,6 +880,12 @@ pub fn reduce_with<R: BufRead + Send, T: Send>(
                         let r = match line {
                             ScanLine::Record(rec) => {
                                 reduce_one(eng, &plan, &header, rec, *row, report, opts)
+                            }
+                            ScanLine::Repaired(rec, why) => {
+                                let mut r =
+                                    reduce_one(eng, &plan, &header, rec, *row, report, opts);
+                                r.flags.insert(0, format!("row {row}, {why}"));
+                                r
                             }
                             ScanLine::Bad(why) => {
                                 let mut r = ScanResult::empty(*row, report.len());

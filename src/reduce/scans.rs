@@ -23,8 +23,23 @@ pub const MAX_LINE: usize = 1 << 20;
 pub enum ScanLine {
     /// The cells of a well-formed line (trimmed).
     Record(csv::StringRecord),
+    /// A line read with a repair, and what was repaired: a cell with an
+    /// unterminated quote is kept as written when the line still splits
+    /// into the header's fields (a stray quote in a note column must not
+    /// lose the scan's readings). The scan carries this as a flag.
+    Repaired(csv::StringRecord, String),
     /// A line that cannot be split into the header's fields, and why.
     Bad(String),
+}
+
+impl ScanLine {
+    /// The cells, when the line could be split.
+    pub fn record(&self) -> Option<&csv::StringRecord> {
+        match self {
+            ScanLine::Record(r) | ScanLine::Repaired(r, _) => Some(r),
+            ScanLine::Bad(_) => None,
+        }
+    }
 }
 
 /// A scan file being read.
@@ -94,6 +109,28 @@ fn read_line<R: BufRead>(r: &mut R, pos: &mut u64) -> std::io::Result<Raw> {
             });
         }
     }
+}
+
+/// A line with an odd number of quotes, split on every delimiter: cells
+/// quoted whole lose their quotes, the cell with the unpaired quote is kept
+/// as written (its index is returned). A quoted delimiter makes the field
+/// count wrong, and the caller then refuses the line.
+fn split_literal(line: &str, delimiter: u8) -> (csv::StringRecord, Option<usize>) {
+    let mut rec = csv::StringRecord::new();
+    let mut odd = None;
+    for (i, c) in line.split(delimiter as char).enumerate() {
+        let c = c.trim();
+        let quotes = c.matches('"').count();
+        if quotes % 2 == 1 && odd.is_none() {
+            odd = Some(i);
+            rec.push_field(c);
+        } else if c.len() >= 2 && c.starts_with('"') && c.ends_with('"') {
+            rec.push_field(&c[1..c.len() - 1].replace("\"\"", "\""));
+        } else {
+            rec.push_field(c);
+        }
+    }
+    (rec, odd)
 }
 
 fn split(line: &str, delimiter: u8) -> Result<csv::StringRecord, String> {
@@ -183,6 +220,24 @@ impl<R: BufRead> ScanReader<R> {
             let text = text.trim_end_matches(['\n', '\r']);
             if text.trim().is_empty() {
                 continue;
+            }
+            if text.bytes().filter(|&b| b == b'"').count() % 2 == 1 {
+                let (rec, odd) = split_literal(text, self.delimiter);
+                return Ok(Some(if rec.len() == self.header.len() {
+                    let col = odd
+                        .and_then(|i| self.header.get(i))
+                        .map_or("?", |h| h.as_str());
+                    let cell = odd.and_then(|i| rec.get(i)).unwrap_or("");
+                    ScanLine::Repaired(
+                        rec.clone(),
+                        format!("column {col}: unterminated quote in {cell}, read as written"),
+                    )
+                } else {
+                    ScanLine::Bad(format!(
+                        "unterminated quote (and the row does not split into the header's {} fields without it)",
+                        self.header.len()
+                    ))
+                }));
             }
             return Ok(Some(match split(text, self.delimiter) {
                 Err(e) => ScanLine::Bad(e),

@@ -14,7 +14,7 @@ use std::time::SystemTime;
 
 /// Lines the help overlay can scroll by (about its length, so scrolling
 /// down never runs into blank pages).
-const HELP_SCROLL_MAX: u16 = super::keymap::COMMANDS.len() as u16 + 8;
+const HELP_SCROLL_MAX: u16 = 3 * super::keymap::COMMANDS.len() as u16 + 16;
 
 /// The main views.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -188,6 +188,13 @@ pub enum Popup {
         /// Focused field.
         sel: usize,
     },
+    /// The loaded scans: jump to one, or list only the flagged ones.
+    ScanList {
+        /// Selected entry (index into the list shown).
+        sel: usize,
+        /// Only scans with flags or that cannot be used.
+        flagged: bool,
+    },
     /// Help overlay.
     Help {
         /// Scroll offset.
@@ -302,10 +309,22 @@ pub struct ScanBrowser {
     pub plan: crate::reduce::Plan,
     /// The scan selected (index into rows).
     pub at: usize,
-    /// The scan whose values the workbook holds (None: none yet). It
-    /// differs from `at` when the selected scan could not be applied, and
-    /// the title then says whose values are on screen.
+    /// The scan applied to the workbook (None: the selected scan could not
+    /// be applied, and every value is withheld).
     pub shown: Option<usize>,
+    /// What the channel map makes of each scan (for the scan list).
+    pub marks: Vec<ScanMark>,
+}
+
+/// What the channel map makes of one scan.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ScanMark {
+    /// Every channel read.
+    Ok,
+    /// Usable, with probes left out (the first reason and the count).
+    Flagged(String, usize),
+    /// Not usable (the reasons).
+    Unusable(String),
 }
 
 /// Most scans the browser holds in memory (the `reduce` command streams any length).
@@ -338,6 +357,7 @@ pub fn write_recovery_text(rp: &Path, text: &str) -> bool {
 mod edits;
 mod files;
 mod scans;
+pub use scans::{Origin, scan_label};
 mod sweep_form;
 
 impl App {
@@ -615,6 +635,16 @@ impl App {
             }
             Command::ScanPrev => self.step_scan(-1),
             Command::ScanNext => self.step_scan(1),
+            Command::ScanList => match &self.scans {
+                Some(sb) => {
+                    let sel = sb.at;
+                    self.popups.push(Popup::ScanList {
+                        sel,
+                        flagged: false,
+                    })
+                }
+                None => self.info("no scans loaded: b loads a scan file"),
+            },
         }
     }
 
@@ -819,6 +849,61 @@ impl App {
                     purpose,
                 }),
             },
+            Popup::ScanList { mut sel, flagged } => {
+                let n = self.scans.as_ref().map_or(0, |sb| sb.listed(flagged).len());
+                match code {
+                    KeyCode::Esc | KeyCode::Char('q') => {}
+                    KeyCode::Up | KeyCode::Char('k') => {
+                        sel = sel.saturating_sub(1);
+                        self.popups.push(Popup::ScanList { sel, flagged });
+                    }
+                    KeyCode::Down | KeyCode::Char('j') => {
+                        sel = (sel + 1).min(n.saturating_sub(1));
+                        self.popups.push(Popup::ScanList { sel, flagged });
+                    }
+                    KeyCode::PageUp => {
+                        sel = sel.saturating_sub(10);
+                        self.popups.push(Popup::ScanList { sel, flagged });
+                    }
+                    KeyCode::PageDown => {
+                        sel = (sel + 10).min(n.saturating_sub(1));
+                        self.popups.push(Popup::ScanList { sel, flagged });
+                    }
+                    KeyCode::Char('f') => {
+                        // Keep the selected scan selected when it stays listed.
+                        let cur = self
+                            .scans
+                            .as_ref()
+                            .and_then(|sb| sb.listed(flagged).get(sel).copied());
+                        let list = self
+                            .scans
+                            .as_ref()
+                            .map_or(Vec::new(), |sb| sb.listed(!flagged));
+                        let sel = cur
+                            .and_then(|c| list.iter().position(|&i| i >= c))
+                            .unwrap_or(0);
+                        if list.is_empty() {
+                            self.info("no scan has a flag");
+                            self.popups.push(Popup::ScanList { sel: 0, flagged });
+                        } else {
+                            self.popups.push(Popup::ScanList {
+                                sel,
+                                flagged: !flagged,
+                            });
+                        }
+                    }
+                    KeyCode::Enter => {
+                        if let Some(i) = self
+                            .scans
+                            .as_ref()
+                            .and_then(|sb| sb.listed(flagged).get(sel).copied())
+                        {
+                            self.goto_scan(i);
+                        }
+                    }
+                    _ => self.popups.push(Popup::ScanList { sel, flagged }),
+                }
+            }
             Popup::Setup { mut sel } => {
                 let rows = self.setup_rows();
                 match code {
@@ -1107,5 +1192,6 @@ pub fn station_problem(app: &App) -> Option<String> {
         StationStatus::Blocked(p) => {
             Some(format!("not computed: blocked by the problem in \"{p}\""))
         }
+        StationStatus::Withheld(why) => Some(format!("no values shown: {why}")),
     }
 }

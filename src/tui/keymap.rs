@@ -68,6 +68,8 @@ pub enum Command {
     ScanPrev,
     /// Next scan.
     ScanNext,
+    /// The scan list.
+    ScanList,
     /// Quit.
     Quit,
 }
@@ -200,6 +202,12 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
         &["["],
     ),
     (Command::ScanNext, "next-scan", "show the next scan", &["]"]),
+    (
+        Command::ScanList,
+        "list-scans",
+        "list the loaded scans with their flags: jump to one, f shows only flagged ones",
+        &["B"],
+    ),
     (
         Command::PageDown,
         "page-down",

@@ -5,7 +5,9 @@
 //! `..` (blocked upstream); undefined ones show `-`. The selection has a `>`
 //! marker as well as the reverse attribute, so none of this relies on colour.
 
-use super::app::{App, Focus, PanelRow, Popup, SetupRow, View, station_problem};
+use super::app::{
+    App, Focus, Origin, PanelRow, Popup, ScanMark, SetupRow, View, scan_label, station_problem,
+};
 use super::keymap::COMMANDS;
 use super::plot::{self, Series};
 use crate::book::paths::STATION_KEYS;
@@ -179,14 +181,8 @@ fn title_line(app: &App) -> Line<'static> {
         .as_ref()
         .map_or(String::new(), |sb| match sb.shown {
             Some(s) if s == sb.at => format!(" scan {}/{}", sb.at + 1, sb.rows.len()),
-            Some(s) => format!(
-                " scan {}/{} UNREADABLE, values of scan {}",
-                sb.at + 1,
-                sb.rows.len(),
-                s + 1
-            ),
-            None => format!(
-                " scan {}/{} UNREADABLE, workbook values",
+            _ => format!(
+                " scan {}/{} NOT APPLIED: values withheld",
                 sb.at + 1,
                 sb.rows.len()
             ),
@@ -327,6 +323,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
                 },
                 StationStatus::Failed(_) => "!!".to_string(),
                 StationStatus::Blocked(_) => "..".to_string(),
+                StationStatus::Withheld(_) => "xx".to_string(),
             };
             let mut style = match status {
                 StationStatus::Ok(_) if given => th.given(),
@@ -391,9 +388,45 @@ fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
     let (text, si) = (g.text().to_string(), g.si());
     let field = path.rsplit('.').next().unwrap_or(path).to_string();
     let shown = with_unit(si, q, app.system);
-    // A scan (or sweep, goal) sets the value in use apart from the file's text.
-    if g.is_varied() {
-        return Some((field, format!("{shown}  (scan; file: {text})"), true));
+    // A scan, goal or sweep sets the value in use apart from the file's
+    // text: say which, and for a scan its raw readings.
+    match app.origin(path) {
+        Origin::Typed => {}
+        Origin::Scan(label, cells, unit) => {
+            let raw: Vec<String> = cells.iter().map(|(c, v)| format!("{c} {v}")).collect();
+            return Some((
+                field,
+                format!(
+                    "{shown}  ({label}: {} {unit}; file: {text})",
+                    raw.join(", ")
+                ),
+                true,
+            ));
+        }
+        Origin::ScanWithheld(label) => {
+            return Some((
+                field,
+                format!("xx  ({label} not applied; file: {text})"),
+                true,
+            ));
+        }
+        Origin::Goal(k) if app.engine.as_ref().is_some_and(|e| e.withheld().is_some()) => {
+            return Some((
+                field,
+                format!("xx  (goal {k} not solved: values withheld; file: {text})"),
+                true,
+            ));
+        }
+        Origin::Goal(k) => {
+            return Some((
+                field,
+                format!("{shown}  (set by goal {k}; file: {text})"),
+                true,
+            ));
+        }
+        Origin::Varied => {
+            return Some((field, format!("{shown}  (varied; file: {text})"), true));
+        }
     }
     let same = text.trim() == shown.trim() || matches!(q, Quantity::Ratio | Quantity::Mach);
     Some((
@@ -604,6 +637,7 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             StationStatus::Ok(_) => " ",
             StationStatus::Failed(_) => "!",
             StationStatus::Blocked(_) => ".",
+            StationStatus::Withheld(_) => "x",
         };
         let text = format!("{}{mark}{}", if i == app.row { ">" } else { " " }, s.name);
         let style = if i == app.row {
@@ -827,6 +861,48 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     f.render_widget(Paragraph::new(tl).block(th.block(title)), ta);
 }
 
+/// Paragraphs after the key table in help.
+const HELP_NOTES: &[&str] = &[
+    "In a popup: type a value with or without unit (\"14.7 psia\", \"59 degF\"); the field opens with the value selected, so typing replaces it; Left/Right, Home/End move; ctrl-u clears; Enter applies, Esc cancels.",
+    "Marks in the grid: a value in bold with = is a given (typed by you); !! marks a station whose process has a problem; .. one blocked by a problem upstream; xx a value withheld (the selected scan could not be applied); - a value that is not defined there.",
+    "Keys can be changed in the settings file (see the README).",
+];
+
+/// Word-wrap `text` to `width` columns; every line after the first starts
+/// with `indent` spaces (the first is padded too, for the caller to
+/// replace). A word longer than a line is cut.
+pub fn hang(text: &str, width: usize, indent: usize) -> Vec<String> {
+    let room = width.saturating_sub(indent).max(8);
+    let pad = " ".repeat(indent);
+    let mut out = Vec::new();
+    let mut cur = String::new();
+    for word in text.split_whitespace() {
+        let mut word = word.to_string();
+        while word.chars().count() > room {
+            if !cur.is_empty() {
+                out.push(format!("{pad}{cur}"));
+                cur.clear();
+            }
+            let head: String = word.chars().take(room).collect();
+            out.push(format!("{pad}{head}"));
+            word = word.chars().skip(room).collect();
+        }
+        let need = cur.chars().count() + usize::from(!cur.is_empty()) + word.chars().count();
+        if need > room && !cur.is_empty() {
+            out.push(format!("{pad}{cur}"));
+            cur.clear();
+        }
+        if !cur.is_empty() {
+            cur.push(' ');
+        }
+        cur.push_str(&word);
+    }
+    if !cur.is_empty() || out.is_empty() {
+        out.push(format!("{pad}{cur}"));
+    }
+    out
+}
+
 fn centered(area: Rect, w: u16, h: u16) -> Rect {
     let w = w.min(area.width);
     let h = h.min(area.height);
@@ -1029,35 +1105,96 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             )));
             f.render_widget(Paragraph::new(lines).block(th.block(" sweep set-up ")), r);
         }
-        Popup::Help { scroll } => {
-            let r = centered(area, area.width.saturating_sub(4), area.height);
+        Popup::ScanList { sel, flagged } => {
+            let Some(sb) = &app.scans else {
+                return;
+            };
+            let list = sb.listed(*flagged);
+            let h = area.height;
+            let r = area;
             f.render_widget(Clear, r);
-            let mut lines = vec![Line::from(Span::styled(CAUTION, th.bad())), Line::from("")];
+            let visible = h.saturating_sub(4) as usize;
+            let skip = if *sel >= visible {
+                sel + 1 - visible
+            } else {
+                0
+            };
+            let w = r.width.saturating_sub(4) as usize;
+            let mut lines: Vec<Line> = Vec::new();
+            for (li, &i) in list.iter().enumerate().skip(skip).take(visible) {
+                let mark = match sb.marks.get(i) {
+                    Some(ScanMark::Ok) | None => "ok".to_string(),
+                    Some(ScanMark::Flagged(first, n)) => format!("{n} flag(s): {first}"),
+                    Some(ScanMark::Unusable(why)) => format!("NOT USABLE: {why}"),
+                };
+                let here = if Some(i) == sb.shown { "*" } else { " " };
+                let text = fit_left(
+                    &format!("{here}{}  {mark}", scan_label(sb, i)),
+                    w.saturating_sub(2),
+                );
+                let style = if li == *sel {
+                    th.sel()
+                } else if matches!(sb.marks.get(i), Some(ScanMark::Unusable(_))) {
+                    th.bad()
+                } else {
+                    Style::default()
+                };
+                let marker = if li == *sel { "> " } else { "  " };
+                lines.push(Line::from(Span::styled(format!("{marker}{text}"), style)));
+            }
+            lines.push(Line::from(Span::styled(
+                "Up/Down, PageUp/PageDown choose; Enter shows; f flagged only; Esc closes; * = on screen",
+                th.dim(),
+            )));
+            let title = format!(
+                " scans of {} ({} of {}{}) ",
+                sb.path
+                    .file_name()
+                    .map_or(String::new(), |n| n.to_string_lossy().to_string()),
+                list.len(),
+                sb.rows.len(),
+                if *flagged { ", flagged only" } else { "" }
+            );
+            f.render_widget(Paragraph::new(lines).block(th.block(title)), r);
+        }
+        Popup::Help { scroll } => {
+            let r = area;
+            f.render_widget(Clear, r);
+            let w = r.width.saturating_sub(2) as usize;
+            let mut lines: Vec<Line> = hang(CAUTION, w, 0)
+                .into_iter()
+                .map(|l| Line::from(Span::styled(l, th.bad())))
+                .collect();
+            lines.push(Line::from(""));
+            // Keys and command name in two columns; the description wraps
+            // under itself, never back to the left edge.
             for (c, name, doc, _) in COMMANDS {
-                lines.push(Line::from(format!(
-                    "{:<16} {:<16} {doc}",
-                    app.keymap.keys_of(*c),
-                    name
-                )));
+                let head = format!("{:<16} {:<16} ", app.keymap.keys_of(*c), name);
+                let indent = head.chars().count();
+                for (i, l) in hang(doc, w, indent).into_iter().enumerate() {
+                    lines.push(Line::from(if i == 0 {
+                        format!("{head}{}", l.trim_start())
+                    } else {
+                        l
+                    }));
+                }
             }
             lines.push(Line::from(""));
-            lines.push(Line::from(
-                "In a popup: type a value with or without unit (\"14.7 psia\", \"59 degF\");",
-            ));
-            lines.push(Line::from(
-                "Enter applies, Esc cancels. A value shown with = is a given; !! marks a",
-            ));
-            lines.push(Line::from(
-                "station whose process has a problem, .. one blocked by a problem upstream.",
-            ));
-            lines.push(Line::from(
-                "Keys can be changed in the settings file (see the README).",
-            ));
+            for para in HELP_NOTES {
+                lines.extend(hang(para, w, 0).into_iter().map(Line::from));
+            }
+            let visible = r.height.saturating_sub(2) as usize;
+            let top = (*scroll as usize).min(lines.len().saturating_sub(visible));
+            let title = format!(
+                " help: lines {}-{} of {} (Up/Down scroll, any other key closes) ",
+                top + 1,
+                (top + visible).min(lines.len()),
+                lines.len()
+            );
             f.render_widget(
                 Paragraph::new(lines)
-                    .block(th.block(" help (Up/Down scroll, any other key closes) "))
-                    .scroll((*scroll, 0))
-                    .wrap(Wrap { trim: false }),
+                    .block(th.block(title))
+                    .scroll((top as u16, 0)),
                 r,
             );
         }

@@ -62,7 +62,10 @@ impl App {
         let mut closed = None;
         if let Some(sb) = &mut self.scans {
             match crate::reduce::Plan::new(book, &sb.header) {
-                Ok(plan) => sb.plan = plan,
+                Ok(plan) => {
+                    sb.plan = plan;
+                    sb.mark();
+                }
                 Err(e) => closed = Some(e.to_string()),
             }
         }
@@ -76,6 +79,14 @@ impl App {
         if let Some(e) = closed {
             self.scans = None;
             self.error(format!("scan browser closed: {e}"));
+        } else if let Some(at) = self.scans.as_ref().map(|sb| sb.at) {
+            // The new engine computes afresh: the scan on screen is applied
+            // (or its values withheld) again.
+            let status = self.status.clone();
+            self.show_scan(at);
+            if status.is_some() {
+                self.status = status;
+            }
         }
     }
 
