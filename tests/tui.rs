@@ -204,11 +204,13 @@ fn editing_the_compressor_pressure_ratio_recomputes_downstream_and_the_screen() 
     match app.popups.last() {
         Some(Popup::Edit { path, input, .. }) => {
             assert_eq!(path, PR);
-            assert_eq!(input, "10", "the edit starts from the text as typed");
+            assert_eq!(input.text(), "10", "the edit starts from the text as typed");
+            assert!(input.is_selected(), "and selected, so typing replaces it");
         }
         other => panic!("expected the edit popup, got {other:?}"),
     }
-    press(&mut app, "ctrl-u 1 1 Enter");
+    // No ctrl-u: typing replaces the selected value rather than appending.
+    press(&mut app, "1 1 Enter");
     assert!(app.popups.is_empty());
     assert_eq!(given_text(book(&app), PR).as_deref(), Some("11"));
     for (p, b) in DOWNSTREAM.iter().zip(&before) {
@@ -250,7 +252,7 @@ fn invalid_values_keep_the_old_one_and_say_why() {
         press(&mut app, "Enter");
         // The popup stays open with the text, so it can be corrected.
         match app.popups.last() {
-            Some(Popup::Edit { input, .. }) => assert_eq!(input, bad),
+            Some(Popup::Edit { input, .. }) => assert_eq!(input.text(), bad),
             other => panic!("{bad}: expected the edit popup to stay, got {other:?}"),
         }
         let (msg, err) = status(&app);
@@ -338,7 +340,11 @@ fn insert_a_station_then_undo_and_redo() {
     press(&mut app, "j j a");
     match app.popups.last() {
         Some(Popup::Text { input, title, .. }) => {
-            assert_eq!(input, "", "the name starts empty: typing replaces nothing");
+            assert_eq!(
+                input.text(),
+                "",
+                "the name starts empty: typing replaces nothing"
+            );
             assert!(title.contains("Enter alone: 3a"), "{title}");
         }
         other => panic!("{other:?}"),

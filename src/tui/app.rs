@@ -1,6 +1,7 @@
 //! Application state and its update: keys become commands, commands change
 //! the state through the engine. Views read `&App` and never change it.
 
+pub use super::field::Field;
 use super::keymap::{Command, Keymap, key_of};
 use super::settings::{self, Settings};
 use crate::book::{Duct, Given, Kind, Process, Statics, Station, Workbook};
@@ -147,7 +148,7 @@ pub enum Popup {
         /// Its quantity (for the accepted units hint).
         quantity: Quantity,
         /// The text being typed.
-        input: String,
+        input: Field,
     },
     /// A yes/no question.
     Confirm {
@@ -161,7 +162,7 @@ pub enum Popup {
         /// Title.
         title: String,
         /// The text being typed.
-        input: String,
+        input: Field,
         /// What it is for.
         purpose: TextFor,
     },
@@ -566,10 +567,11 @@ impl App {
             Command::Save => self.save(false),
             Command::SaveAs => self.popups.push(Popup::Text {
                 title: "save as (file path)".into(),
-                input: self
-                    .path
-                    .as_ref()
-                    .map_or("workbook.ron".into(), |p| p.display().to_string()),
+                input: Field::with(
+                    self.path
+                        .as_ref()
+                        .map_or("workbook.ron".into(), |p| p.display().to_string()),
+                ),
                 purpose: TextFor::SaveAs,
             }),
             Command::Open => {
@@ -593,7 +595,7 @@ impl App {
                     title: format!(
                         "name of the new station (a duct leads into it; Enter alone: {name})"
                     ),
-                    input: String::new(),
+                    input: Field::default(),
                     purpose: TextFor::Insert(self.row),
                 });
             }
@@ -629,7 +631,7 @@ impl App {
                     .unwrap_or_default();
                 self.popups.push(Popup::Text {
                     title: "scan file to browse (CSV or tab-separated)".into(),
-                    input: guess,
+                    input: Field::with(guess),
                     purpose: TextFor::Scans,
                 });
             }
@@ -710,7 +712,7 @@ impl App {
         self.popups.push(Popup::Edit {
             path,
             quantity: q,
-            input: text,
+            input: Field::with(text),
         });
     }
 
@@ -754,7 +756,7 @@ impl App {
             } => match code {
                 KeyCode::Esc => self.info("edit cancelled"),
                 KeyCode::Enter => {
-                    if let Err(e) = self.apply_edit(&path, &input) {
+                    if let Err(e) = self.apply_edit(&path, input.text()) {
                         self.error(format!("{e} (old value kept)"));
                         self.popups.push(Popup::Edit {
                             path,
@@ -764,7 +766,7 @@ impl App {
                     }
                 }
                 _ => {
-                    line_edit(&mut input, code, ctrl);
+                    input.key(code, ctrl);
                     self.popups.push(Popup::Edit {
                         path,
                         quantity,
@@ -778,9 +780,9 @@ impl App {
                 purpose,
             } => match code {
                 KeyCode::Esc => {}
-                KeyCode::Enter => self.text_done(purpose, &input),
+                KeyCode::Enter => self.text_done(purpose, input.text()),
                 _ => {
-                    line_edit(&mut input, code, ctrl);
+                    input.key(code, ctrl);
                     self.popups.push(Popup::Text {
                         title,
                         input,
@@ -927,7 +929,7 @@ impl App {
                                     self.popups.push(Popup::Edit {
                                         path: p.clone(),
                                         quantity: q,
-                                        input: t,
+                                        input: Field::with(t),
                                     });
                                 }
                             }
@@ -1163,19 +1165,6 @@ fn statics_name(s: &Statics) -> &'static str {
         Statics::Pressure(_) => "static pressure",
         Statics::Velocity(_) => "velocity",
         Statics::Area(_) => "area",
-    }
-}
-
-/// A key in a one-line input field: Backspace deletes, ctrl-u clears, a
-/// character is typed; anything else leaves the text as it is.
-fn line_edit(input: &mut String, code: KeyCode, ctrl: bool) {
-    match code {
-        KeyCode::Backspace => {
-            input.pop();
-        }
-        KeyCode::Char('u') if ctrl => input.clear(),
-        KeyCode::Char(c) if !ctrl => input.push(c),
-        _ => {}
     }
 }
 

@@ -8,6 +8,7 @@
 //! recovery file beside the workbook, offered at the next open.
 
 pub mod app;
+pub mod field;
 pub mod keymap;
 pub mod lifeline;
 pub mod plot;

@@ -903,6 +903,23 @@ pub fn hang(text: &str, width: usize, indent: usize) -> Vec<String> {
     out
 }
 
+/// An input field: a selected text in reverse video (typing replaces it),
+/// otherwise the text with the cursor cell reversed.
+fn field_line(f: &super::field::Field, th: &Theme) -> Line<'static> {
+    if f.is_selected() {
+        return Line::from(vec![
+            Span::styled(f.text().to_string(), th.sel()),
+            Span::raw(" "),
+        ]);
+    }
+    let (before, at, after) = f.parts();
+    Line::from(vec![
+        Span::raw(before),
+        Span::styled(at, th.sel()),
+        Span::raw(after),
+    ])
+}
+
 fn centered(area: Rect, w: u16, h: u16) -> Rect {
     let w = w.min(area.width);
     let h = h.min(area.height);
@@ -931,7 +948,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let r = centered(area, 70, if refused.is_some() { 9 } else { 7 });
             f.render_widget(Clear, r);
             let lines = vec![
-                Line::from(format!("{input}{cursor}")),
+                field_line(input, th),
                 match refused {
                     Some(m) => Line::from(Span::styled(m, th.bad())),
                     None => Line::from(""),
@@ -941,7 +958,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                     th.dim(),
                 )),
                 Line::from(Span::styled(
-                    "Enter applies and recomputes; Esc cancels; ctrl-u clears",
+                    "typing replaces the value; Left/Right/Home/End move; ctrl-u clears; Enter applies and recomputes; Esc cancels",
                     th.dim(),
                 )),
             ];
@@ -966,9 +983,9 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let r = centered(area, 66, 5);
             f.render_widget(Clear, r);
             let lines = vec![
-                Line::from(format!("{input}{cursor}")),
+                field_line(input, th),
                 Line::from(Span::styled(
-                    "Enter accepts, Esc cancels, ctrl-u clears",
+                    "typing replaces; Left/Right/Home/End move; ctrl-u clears; Enter accepts; Esc cancels",
                     th.dim(),
                 )),
             ];

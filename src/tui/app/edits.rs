@@ -255,13 +255,13 @@ impl App {
             let pi = e.producer_of(self.row);
             self.popups.push(Popup::Text {
                 title: "new name of the process".into(),
-                input: b.processes[pi].name.clone(),
+                input: Field::with(b.processes[pi].name.clone()),
                 purpose: TextFor::RenameProcess(pi),
             });
         } else if let Some(s) = b.stations.get(self.row) {
             self.popups.push(Popup::Text {
                 title: "new name of the station".into(),
-                input: s.name.clone(),
+                input: Field::with(s.name.clone()),
                 purpose: TextFor::RenameStation(self.row),
             });
         }

@@ -123,7 +123,7 @@ impl App {
     pub(super) fn ask_open(&mut self) {
         self.popups.push(Popup::Text {
             title: "open workbook (file path)".into(),
-            input: String::new(),
+            input: Field::default(),
             purpose: TextFor::Open,
         });
     }
