@@ -416,7 +416,9 @@ fn change_mode_then_undo() {
     let (mut app, _) = open();
     let t0 = thrust(&app);
     let pt3 = val(&app, "station.3.pt");
-    press(&mut app, "j j m");
+    // The chooser lists the design mode (now), the design mode on the
+    // polytropic basis, then the measured mode.
+    press(&mut app, "j j m Down Down Enter");
     match &process(&app, "compressor").kind {
         Kind::Compressor(c) => assert_eq!(c.mode, Compression::Measured),
         k => panic!("{k:?}"),
@@ -431,7 +433,7 @@ fn change_mode_then_undo() {
     let screen = render_text(&app, 80, 24);
     assert!(screen.contains("compressor: measured exit"), "{screen}");
     // And back to the design mode, which reads no station values.
-    press(&mut app, "m");
+    press(&mut app, "m Down Enter");
     assert!(book(&app).stations[2].tt.is_none());
     assert!(app.engine.as_ref().unwrap().problems().is_empty());
     press(&mut app, "z z");
@@ -957,7 +959,7 @@ fn a_mode_change_starts_from_the_figures_computed_now() {
     // problem appears. Independent check: the thrust before the change.
     let (mut app, _) = open();
     let t0 = thrust(&app);
-    press(&mut app, "j j j j j Tab m");
+    press(&mut app, "j j j j j Tab m Down Enter");
     let b = book(&app);
     assert_eq!(
         given_text(b, "process.nozzle.area").as_deref(),
@@ -971,7 +973,7 @@ fn a_mode_change_starts_from_the_figures_computed_now() {
     );
     // Back on the compressor, measured then design again: the design mode
     // starts from the pressure ratio and efficiency the machine has now.
-    press(&mut app, "Esc k k k Tab m m");
+    press(&mut app, "Tab k k k m Down Down Enter m Down Enter");
     let b = book(&app);
     assert_eq!(
         given_text(b, "process.compressor.pressure_ratio").as_deref(),

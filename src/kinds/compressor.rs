@@ -10,7 +10,14 @@ impl ProcessKind for Compressor {
 
     fn mode_label(&self) -> String {
         match self.mode {
-            Compression::Design { .. } => "compressor: pressure ratio and efficiency given",
+            Compression::Design {
+                basis: Basis::Isentropic,
+                ..
+            } => "compressor: pressure ratio and isentropic efficiency given",
+            Compression::Design {
+                basis: Basis::Polytropic,
+                ..
+            } => "compressor: pressure ratio and polytropic efficiency given",
             Compression::Measured => "compressor: measured exit, PR and efficiencies derived",
         }
         .into()
@@ -51,6 +58,16 @@ impl ProcessKind for Compressor {
     fn next_mode(&self, now: Option<&ProcessResult>) -> Option<Kind> {
         Some(Kind::Compressor(Compressor {
             mode: match &self.mode {
+                // The other efficiency basis, its value the machine's now.
+                Compression::Design {
+                    pressure_ratio,
+                    basis: Basis::Isentropic,
+                    ..
+                } => Compression::Design {
+                    pressure_ratio: pressure_ratio.clone(),
+                    efficiency: seed_efficiency(now, Basis::Polytropic, "0.9"),
+                    basis: Basis::Polytropic,
+                },
                 Compression::Design { .. } => Compression::Measured,
                 // Back to design: start from the machine's figures now.
                 Compression::Measured => Compression::Design {

@@ -298,3 +298,60 @@ mod prelude {
     pub(crate) use crate::gas::{Composition, Fuel, Gas, Thermo};
     pub(crate) use crate::units::Quantity;
 }
+
+/// Every mode of a process's kind, the current one first; each other
+/// mode's givens start from the figures computed now (`now`) where they
+/// carry over (the chooser's list; see [`ProcessKind::next_mode`]).
+pub fn modes(kind: &Kind, now: Option<&ProcessResult>) -> Vec<Kind> {
+    let start = of(kind).mode_label();
+    let mut v = vec![kind.clone()];
+    while v.len() < 16 {
+        let Some(next) = v.last().and_then(|k| of(k).next_mode(now)) else {
+            break;
+        };
+        if of(&next).mode_label() == start {
+            break;
+        }
+        v.push(next);
+    }
+    v
+}
+
+/// What a mode takes and what it derives, in one line for the chooser.
+pub fn mode_summary(kind: &Kind) -> String {
+    let k = of(kind);
+    let mut takes: Vec<&str> = Vec::new();
+    k.visit_givens(&mut |key, _, _| takes.push(key));
+    let reads = k.reads();
+    if reads.measured_tt {
+        takes.push("exit Tt (measured)");
+    }
+    if reads.measured_pt {
+        takes.push("exit pt (measured)");
+    }
+    let derives: Vec<&str> = k
+        .figure_keys()
+        .iter()
+        .filter(|f| !takes.contains(f))
+        .take(5)
+        .map(|f| {
+            crate::book::paths::FIGURE_KEYS
+                .iter()
+                .find(|(key, ..)| key == f)
+                .map_or(*f, |(_, label, _)| *label)
+        })
+        .collect();
+    format!(
+        "you give: {}; it derives: {}",
+        if takes.is_empty() {
+            "nothing".to_string()
+        } else {
+            takes.join(", ")
+        },
+        if derives.is_empty() {
+            "the exit state".to_string()
+        } else {
+            derives.join(", ")
+        }
+    )
+}

@@ -11,8 +11,22 @@ impl ProcessKind for Turbine {
 
     fn mode_label(&self) -> String {
         match self.mode {
-            Expansion::Design { .. } => "turbine: expansion ratio and efficiency given",
-            Expansion::ShaftWork { .. } => "turbine: work from the shaft balance",
+            Expansion::Design {
+                basis: Basis::Isentropic,
+                ..
+            } => "turbine: expansion ratio and isentropic efficiency given",
+            Expansion::Design {
+                basis: Basis::Polytropic,
+                ..
+            } => "turbine: expansion ratio and polytropic efficiency given",
+            Expansion::ShaftWork {
+                basis: Basis::Isentropic,
+                ..
+            } => "turbine: work from the shaft balance, isentropic efficiency given",
+            Expansion::ShaftWork {
+                basis: Basis::Polytropic,
+                ..
+            } => "turbine: work from the shaft balance, polytropic efficiency given",
             Expansion::Measured => "turbine: measured exit, efficiency derived",
         }
         .into()
@@ -60,9 +74,25 @@ impl ProcessKind for Turbine {
     fn next_mode(&self, now: Option<&ProcessResult>) -> Option<Kind> {
         Some(Kind::Turbine(Turbine {
             mode: match &self.mode {
-                Expansion::Design { basis, .. } => Expansion::ShaftWork {
-                    efficiency: seed_efficiency(now, *basis, "0.9"),
-                    basis: *basis,
+                Expansion::Design {
+                    pressure_ratio,
+                    basis: Basis::Isentropic,
+                    ..
+                } => Expansion::Design {
+                    pressure_ratio: pressure_ratio.clone(),
+                    efficiency: seed_efficiency(now, Basis::Polytropic, "0.9"),
+                    basis: Basis::Polytropic,
+                },
+                Expansion::Design { .. } => Expansion::ShaftWork {
+                    efficiency: seed_efficiency(now, Basis::Isentropic, "0.9"),
+                    basis: Basis::Isentropic,
+                },
+                Expansion::ShaftWork {
+                    basis: Basis::Isentropic,
+                    ..
+                } => Expansion::ShaftWork {
+                    efficiency: seed_efficiency(now, Basis::Polytropic, "0.9"),
+                    basis: Basis::Polytropic,
                 },
                 Expansion::ShaftWork { .. } => Expansion::Measured,
                 // Back to design: start from the machine's figures now.

@@ -120,6 +120,9 @@ pub enum TextFor {
 pub enum ChooseFor {
     /// A process kind for the process into the selected station.
     Kind,
+    /// A mode of the process into the selected station (the candidates,
+    /// the current one first).
+    Mode(Vec<Kind>),
     /// What fixes the selected station's static state.
     Statics,
     /// The start screen: recent files and templates.
@@ -275,7 +278,14 @@ pub struct App {
     /// The canonical text of the workbook as last opened or saved (undo
     /// back to it clears the modified mark).
     pub saved_text: Option<String>,
+    /// The givens of each mode a process was switched away from (by
+    /// process name and mode label, with its exit station's measured Tt
+    /// and pt), so switching back restores them.
+    pub mode_memory: std::collections::HashMap<(String, String), ModeMemory>,
 }
+
+/// A mode left behind: the process's kind and its exit's measured Tt, pt.
+pub type ModeMemory = (Kind, Option<Given>, Option<Given>);
 
 /// Uncertainties of the grid's values, by path.
 pub type UncertaintyMap = std::collections::HashMap<String, crate::reduce::Uncertainty>;
@@ -393,6 +403,7 @@ impl App {
             scroll: 0,
             derived: Derived::default(),
             saved_text: None,
+            mode_memory: Default::default(),
         };
         if !bad.is_empty() {
             app.error(format!("settings: keys not understood: {}", bad.join("; ")));
@@ -613,7 +624,7 @@ impl App {
                     purpose: ChooseFor::Kind,
                 });
             }
-            Command::Mode => self.cycle_mode(),
+            Command::Mode => self.choose_mode(),
             Command::Setup => self.popups.push(Popup::Setup { sel: 0 }),
             Command::Help => self.popups.push(Popup::Help { scroll: 0 }),
             Command::Scans => {
@@ -822,6 +833,11 @@ impl App {
                 }
                 KeyCode::Enter => match purpose {
                     ChooseFor::Kind => self.set_kind(sel),
+                    ChooseFor::Mode(list) => {
+                        if let Some(k) = list.into_iter().nth(sel) {
+                            self.set_mode(k);
+                        }
+                    }
                     ChooseFor::Statics => self.set_statics(sel),
                     ChooseFor::Start(list) => {
                         let r = match list.get(sel) {

@@ -180,7 +180,7 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
     (
         Command::Mode,
         "change-mode",
-        "cycle the mode of the process (what is given, what is derived)",
+        "choose the mode of the process (each says what you give and what it derives)",
         &["m"],
     ),
     (

@@ -920,6 +920,24 @@ fn field_line(f: &super::field::Field, th: &Theme) -> Line<'static> {
     ])
 }
 
+/// Clear a popup's area and a margin of two columns and one row around it
+/// (within `area`), so no fragment of the view behind shows at its sides.
+fn clear_around(f: &mut Frame, r: Rect, area: Rect) {
+    let x0 = r.x.saturating_sub(2).max(area.x);
+    let y0 = r.y.saturating_sub(1).max(area.y);
+    let x1 = (r.x + r.width + 2).min(area.x + area.width);
+    let y1 = (r.y + r.height + 1).min(area.y + area.height);
+    f.render_widget(
+        Clear,
+        Rect {
+            x: x0,
+            y: y0,
+            width: x1 - x0,
+            height: y1 - y0,
+        },
+    );
+}
+
 fn centered(area: Rect, w: u16, h: u16) -> Rect {
     let w = w.min(area.width);
     let h = h.min(area.height);
@@ -946,7 +964,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 _ => None,
             };
             let r = centered(area, 70, if refused.is_some() { 9 } else { 7 });
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let lines = vec![
                 field_line(input, th),
                 match refused {
@@ -971,7 +989,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         }
         Popup::Confirm { text, .. } => {
             let r = centered(area, 66, 6);
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             f.render_widget(
                 Paragraph::new(text.clone())
                     .block(th.block(" confirm (y/n) "))
@@ -981,7 +999,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         }
         Popup::Text { title, input, .. } => {
             let r = centered(area, 66, 5);
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let lines = vec![
                 field_line(input, th),
                 Line::from(Span::styled(
@@ -997,10 +1015,24 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         Popup::Choose {
             title, items, sel, ..
         } => {
-            let h = (items.len() as u16 + 4).min(area.height);
-            let r = centered(area, 76, h);
-            f.render_widget(Clear, r);
-            let visible = h.saturating_sub(3) as usize;
+            let w = 76.min(area.width);
+            let inner = w.saturating_sub(2) as usize;
+            // An item wider than the popup is cut with a ~, and the selected
+            // one is shown whole under the list.
+            let detail = items
+                .get(*sel)
+                .filter(|s| s.chars().count() + 2 > inner)
+                .map(|s| hang(s, inner, 0))
+                .unwrap_or_default();
+            let extra = if detail.is_empty() {
+                0
+            } else {
+                detail.len() as u16 + 1
+            };
+            let h = (items.len() as u16 + 4 + extra).min(area.height);
+            let r = centered(area, w, h);
+            clear_around(f, r, area);
+            let visible = h.saturating_sub(3 + extra) as usize;
             let skip = if *sel >= visible {
                 sel + 1 - visible
             } else {
@@ -1012,19 +1044,34 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 .skip(skip)
                 .take(visible)
                 .map(|(i, s)| {
+                    let t = fit_left(s, inner.saturating_sub(2));
                     if i == *sel {
-                        Line::from(Span::styled(format!("> {s}"), th.sel()))
+                        Line::from(Span::styled(format!("> {t}"), th.sel()))
                     } else {
-                        Line::from(format!("  {s}"))
+                        Line::from(format!("  {t}"))
                     }
                 })
                 .collect();
+            if !detail.is_empty() {
+                lines.push(Line::from(Span::styled("-".repeat(inner), th.dim())));
+                lines.extend(detail.into_iter().map(Line::from));
+            }
+            let more = if items.len() > visible {
+                format!(
+                    " ({}-{} of {})",
+                    skip + 1,
+                    (skip + visible).min(items.len()),
+                    items.len()
+                )
+            } else {
+                String::new()
+            };
             lines.push(Line::from(Span::styled(
                 "Up/Down choose, Enter take, Esc back",
                 th.dim(),
             )));
             f.render_widget(
-                Paragraph::new(lines).block(th.block(format!(" {title} "))),
+                Paragraph::new(lines).block(th.block(format!(" {title}{more} "))),
                 r,
             );
         }
@@ -1032,7 +1079,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let rows = app.setup_rows();
             let h = (rows.len() as u16 + 4).min(area.height);
             let r = centered(area, 70, h);
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let b = app.book();
             let mut lines = Vec::new();
             for (i, row) in rows.iter().enumerate() {
@@ -1098,7 +1145,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         }
         Popup::SweepForm { fields, sel } => {
             let r = centered(area, 72, 10);
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let labels = [
                 "vary (given path)",
                 "from",
@@ -1129,7 +1176,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let list = sb.listed(*flagged);
             let h = area.height;
             let r = area;
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let visible = h.saturating_sub(4) as usize;
             let skip = if *sel >= visible {
                 sel + 1 - visible
@@ -1176,7 +1223,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         }
         Popup::Help { scroll } => {
             let r = area;
-            f.render_widget(Clear, r);
+            clear_around(f, r, area);
             let w = r.width.saturating_sub(2) as usize;
             let mut lines: Vec<Line> = hang(CAUTION, w, 0)
                 .into_iter()

@@ -404,7 +404,56 @@ impl App {
         self.commit(nb, what);
     }
 
-    pub(super) fn cycle_mode(&mut self) {
+    /// The mode chooser: every mode of the selected process, each with
+    /// what it takes and derives, the current one first.
+    pub(super) fn choose_mode(&mut self) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let p = &e.book().processes[pi];
+        let list = crate::kinds::modes(&p.kind, e.process(&p.name));
+        if list.len() < 2 {
+            self.info(format!(
+                "a {} has one mode: {}",
+                crate::kinds::of(&p.kind).name(),
+                crate::kinds::mode_summary(&p.kind)
+            ));
+            return;
+        }
+        let items = list
+            .iter()
+            .enumerate()
+            .map(|(i, k)| {
+                let label = crate::kinds::of(k).mode_label();
+                let now = if i == 0 { " (now)" } else { "" };
+                let kept = if i > 0
+                    && self
+                        .mode_memory
+                        .contains_key(&(p.name.clone(), label.clone()))
+                {
+                    " [your earlier values]"
+                } else {
+                    ""
+                };
+                format!("{label}{now}{kept}: {}", crate::kinds::mode_summary(k))
+            })
+            .collect();
+        self.popups.push(Popup::Choose {
+            title: format!(
+                "mode of \"{}\" (the givens start from the values computed now)",
+                p.name
+            ),
+            items,
+            sel: 0,
+            purpose: ChooseFor::Mode(list),
+        });
+    }
+
+    /// Switch the selected process to a mode: the one it leaves is kept
+    /// (with its exit's measured values), and a mode left before comes
+    /// back with the values it had.
+    pub(super) fn set_mode(&mut self, kind: Kind) {
         let Some(e) = self.engine.as_ref() else {
             return;
         };
@@ -412,21 +461,46 @@ impl App {
             return;
         };
         let pi = e.producer_of(self.row);
-        let p = &mut nb.processes[pi];
-        // The new mode starts from the process's figures now.
-        let next = crate::kinds::of(&p.kind).next_mode(e.process(&p.name));
-        let Some(k) = next else {
-            self.info("this kind of process has one mode");
+        let name = nb.processes[pi].name.clone();
+        let to = nb.processes[pi].to.clone();
+        let old_label = crate::kinds::of(&nb.processes[pi].kind).mode_label();
+        let label = crate::kinds::of(&kind).mode_label();
+        if label == old_label {
+            self.info(format!("mode unchanged: {label}"));
             return;
-        };
-        p.kind = k;
-        let label = crate::kinds::of(&p.kind).mode_label();
+        }
+        let exit = nb.stations.iter().find(|s| s.name == to);
+        let left: ModeMemory = (
+            nb.processes[pi].kind.clone(),
+            exit.and_then(|s| s.tt.clone()),
+            exit.and_then(|s| s.pt.clone()),
+        );
+        let back = self
+            .mode_memory
+            .get(&(name.clone(), label.clone()))
+            .cloned();
+        match &back {
+            Some((k, tt, pt)) => {
+                nb.processes[pi].kind = k.clone();
+                if let Some(st) = nb.stations.iter_mut().find(|s| s.name == to) {
+                    st.tt = tt.clone();
+                    st.pt = pt.clone();
+                }
+            }
+            None => nb.processes[pi].kind = kind,
+        }
         self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
             self.error(crate::present::join(&es));
             return;
         }
-        self.commit(nb, &format!("mode: {label}"));
+        self.mode_memory.insert((name, old_label), left);
+        let how = if back.is_some() {
+            " (your earlier values)"
+        } else {
+            ""
+        };
+        self.commit(nb, &format!("mode: {label}{how}"));
         self.panel = 0;
     }
 
