@@ -2,8 +2,45 @@
 //! --template` and the terminal start screen work anywhere. Every one is an
 //! invented scenario and says so in its note.
 
+/// The smallest workbook that computes: one free-stream station, sea-level
+/// static, 10 kg/s, to build on from the keyboard.
+pub const BLANK: &str = r#"#![enable(implicit_some)]
+(
+    format: 1,
+    title: "New workbook",
+    ambient: (
+        condition: Standard(
+            altitude: "0 m",
+            offset: "0 K",
+        ),
+        flight: Mach("0"),
+    ),
+    gas: ThermallyPerfect,
+    stations: [
+        (
+            name: "0",
+            note: "free stream",
+        ),
+    ],
+    processes: [
+        (
+            name: "freestream",
+            to: "0",
+            kind: Entry(Freestream(
+                w: "10 kg/s",
+            )),
+        ),
+    ],
+)
+"#;
+
 /// Name, one-line description, file text.
 pub const TEMPLATES: &[(&str, &str, &str)] = &[
+    (
+        "blank",
+        "one free-stream station to build a workbook on from the keyboard",
+        BLANK,
+    ),
     (
         "turbojet",
         "single-spool turbojet on a sea-level static stand, shaft balance",

@@ -468,7 +468,7 @@ fn change_kind_then_undo() {
     ));
     assert_eq!(thrust(&app).to_bits(), t0.to_bits());
     // An entry kind is refused for a station that has an upstream one.
-    press(&mut app, "K j j j j j j j j Enter");
+    press(&mut app, "K text:entry Enter");
     assert!(status(&app).1, "{:?}", app.status);
     assert!(matches!(
         process(&app, "compressor").kind,

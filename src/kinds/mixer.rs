@@ -40,10 +40,15 @@ impl ProcessKind for Mixer {
     }
 }
 
-/// The kind chooser does not offer a mixer: inserting one needs its
-/// second stream too, which the chooser cannot add.
+/// What the kind chooser offers: a mixer with no second stream yet (the
+/// terminal offers the stations it can take it from).
 pub fn fresh() -> Vec<(&'static str, Kind)> {
-    Vec::new()
+    vec![(
+        "mixer of two streams (picks the second stream's station)",
+        Kind::Mixer(Mixer {
+            secondary: String::new(),
+        }),
+    )]
 }
 
 fn mixer(

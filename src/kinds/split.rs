@@ -31,10 +31,16 @@ impl ProcessKind for Split {
     }
 }
 
-/// The kind chooser does not offer a split: inserting one needs a bypass
-/// station too, which the chooser cannot add.
+/// What the kind chooser offers: a split with no bypass station yet (the
+/// terminal asks for the new station's name and adds it).
 pub fn fresh() -> Vec<(&'static str, Kind)> {
-    Vec::new()
+    vec![(
+        "split into core and bypass (adds the bypass station)",
+        Kind::Split(Split {
+            bypass_ratio: Given::raw("1"),
+            bypass: String::new(),
+        }),
+    )]
 }
 
 fn split(ctx: &Ctx, s: &Split, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {

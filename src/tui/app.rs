@@ -113,6 +113,14 @@ pub enum TextFor {
     Scans,
     /// Name of a new station after the given index.
     Insert(usize),
+    /// Name of the new bypass station of a split into station (index).
+    SplitBypass(usize),
+    /// The workbook's title.
+    Title,
+    /// The workbook's note.
+    Note,
+    /// Name of a new shaft for the machine into station (index).
+    NewShaft(usize),
 }
 
 /// What a choice list is for.
@@ -125,6 +133,11 @@ pub enum ChooseFor {
     Mode(Vec<Kind>),
     /// What fixes the selected station's static state.
     Statics,
+    /// The second stream of a mixer into station (index): station names.
+    MixerSecondary(usize, Vec<String>),
+    /// The shaft of the machine into station (index): shaft names, then
+    /// "none" and "new".
+    Shaft(usize, Vec<String>),
     /// The start screen: recent files and templates.
     Start(Vec<StartItem>),
 }
@@ -175,8 +188,10 @@ pub enum Popup {
         title: String,
         /// Items shown.
         items: Vec<String>,
-        /// Selected item.
+        /// Selected item (index into `items`).
         sel: usize,
+        /// Typed search: only items containing it (any case) are listed.
+        search: String,
         /// What it is for.
         purpose: ChooseFor,
     },
@@ -206,6 +221,30 @@ pub enum Popup {
     },
 }
 
+impl Popup {
+    /// A choice list with nothing typed yet.
+    pub fn choose(title: impl Into<String>, items: Vec<String>, purpose: ChooseFor) -> Popup {
+        Popup::Choose {
+            title: title.into(),
+            items,
+            sel: 0,
+            search: String::new(),
+            purpose,
+        }
+    }
+}
+
+/// The items of a choice list that contain the typed search (any case).
+pub fn choose_listed(items: &[String], search: &str) -> Vec<usize> {
+    let s = search.to_lowercase();
+    items
+        .iter()
+        .enumerate()
+        .filter(|(_, t)| s.is_empty() || t.to_lowercase().contains(&s))
+        .map(|(i, _)| i)
+        .collect()
+}
+
 /// A row of the process panel.
 #[derive(Debug, Clone, PartialEq)]
 pub enum PanelRow {
@@ -215,6 +254,10 @@ pub enum PanelRow {
     Statics,
     /// Subsonic or supersonic branch (toggles on Enter).
     Branch,
+    /// The shaft a compressor or turbine is on (Enter picks).
+    Shaft,
+    /// An optional shaft value ("offtake", "speed"): Enter adds or removes it.
+    ShaftOptional(&'static str),
 }
 
 /// A computed sweep.
@@ -487,6 +530,22 @@ impl App {
                 }
             }
         }
+        // A machine's shaft, and the shaft's own values.
+        if let Some(p) = producer
+            && matches!(p.kind, Kind::Compressor(_) | Kind::Turbine(_))
+        {
+            rows.push(PanelRow::Shaft);
+            if let Some(s) = crate::kinds::of(&p.kind).shaft() {
+                let sp = format!("shaft.{s}.");
+                for (path, ..) in b.givens() {
+                    if path.starts_with(&sp) {
+                        rows.push(PanelRow::Given(path));
+                    }
+                }
+                rows.push(PanelRow::ShaftOptional("offtake"));
+                rows.push(PanelRow::ShaftOptional("speed"));
+            }
+        }
         rows
     }
 
@@ -545,7 +604,7 @@ impl App {
             }
             Command::Edit if self.view == View::Sweep => self.open_sweep_form(),
             Command::Edit => self.edit_selected(),
-            Command::PageDown => self.scroll = self.scroll.saturating_add(10),
+            Command::PageDown => self.scroll = self.scroll.saturating_add(10).min(400),
             Command::PageUp => self.scroll = self.scroll.saturating_sub(10),
             Command::ViewGrid => self.view = View::Grid,
             Command::ViewWalk => {
@@ -621,6 +680,7 @@ impl App {
                     title: "kind of the process into this station".into(),
                     items,
                     sel: 0,
+                    search: String::new(),
                     purpose: ChooseFor::Kind,
                 });
             }
@@ -677,6 +737,9 @@ impl App {
             self.row = (self.row as isize + d).clamp(0, n as isize - 1) as usize;
         }
         self.panel = 0;
+        if self.view == View::Grid {
+            self.scroll = 0;
+        }
     }
 
     fn edit_selected(&mut self) {
@@ -709,6 +772,14 @@ impl App {
                 }
                 Some(PanelRow::Branch) => {
                     self.toggle_branch();
+                    return;
+                }
+                Some(PanelRow::Shaft) => {
+                    self.choose_shaft();
+                    return;
+                }
+                Some(PanelRow::ShaftOptional(what)) => {
+                    self.toggle_shaft_value(what);
                     return;
                 }
                 None => return,
@@ -805,68 +876,101 @@ impl App {
                 title,
                 items,
                 mut sel,
+                mut search,
                 purpose,
-            } => match code {
-                KeyCode::Esc => {
-                    if matches!(purpose, ChooseFor::Start(_)) && self.engine.is_none() {
-                        self.quit = true;
+            } => {
+                let listed = choose_listed(&items, &search);
+                let at = listed.iter().position(|&i| i == sel);
+                let keep = |app: &mut App, sel, search, purpose| {
+                    app.popups.push(Popup::Choose {
+                        title: title.clone(),
+                        items: items.clone(),
+                        sel,
+                        search,
+                        purpose,
+                    })
+                };
+                match code {
+                    KeyCode::Esc if !search.is_empty() => {
+                        keep(self, sel, String::new(), purpose);
                     }
-                }
-                KeyCode::Char('q') if matches!(purpose, ChooseFor::Start(_)) => self.quit = true,
-                KeyCode::Up | KeyCode::Char('k') => {
-                    sel = sel.saturating_sub(1);
-                    self.popups.push(Popup::Choose {
-                        title,
-                        items,
-                        sel,
-                        purpose,
-                    });
-                }
-                KeyCode::Down | KeyCode::Char('j') => {
-                    sel = (sel + 1).min(items.len().saturating_sub(1));
-                    self.popups.push(Popup::Choose {
-                        title,
-                        items,
-                        sel,
-                        purpose,
-                    });
-                }
-                KeyCode::Enter => match purpose {
-                    ChooseFor::Kind => self.set_kind(sel),
-                    ChooseFor::Mode(list) => {
-                        if let Some(k) = list.into_iter().nth(sel) {
-                            self.set_mode(k);
+                    KeyCode::Esc => {
+                        if matches!(purpose, ChooseFor::Start(_)) && self.engine.is_none() {
+                            self.quit = true;
                         }
                     }
-                    ChooseFor::Statics => self.set_statics(sel),
-                    ChooseFor::Start(list) => {
-                        let r = match list.get(sel) {
-                            Some(StartItem::File(f)) => self.open(f),
-                            Some(StartItem::Template(t)) => self.open_template(t),
-                            Some(StartItem::Recovery(rp, target)) => {
-                                let (rp, target) = (rp.clone(), target.clone());
-                                self.open_recovered(&rp, target)
+                    KeyCode::Char('q')
+                        if matches!(purpose, ChooseFor::Start(_)) && search.is_empty() =>
+                    {
+                        self.quit = true
+                    }
+                    KeyCode::Up | KeyCode::PageUp => {
+                        let step = if code == KeyCode::Up { 1 } else { 10 };
+                        let i = at.unwrap_or(0).saturating_sub(step);
+                        sel = listed.get(i).copied().unwrap_or(sel);
+                        keep(self, sel, search, purpose);
+                    }
+                    KeyCode::Down | KeyCode::PageDown => {
+                        let step = if code == KeyCode::Down { 1 } else { 10 };
+                        let i = at
+                            .map_or(0, |a| a + step)
+                            .min(listed.len().saturating_sub(1));
+                        sel = listed.get(i).copied().unwrap_or(sel);
+                        keep(self, sel, search, purpose);
+                    }
+                    KeyCode::Backspace => {
+                        search.pop();
+                        let l = choose_listed(&items, &search);
+                        if !l.contains(&sel) {
+                            sel = l.first().copied().unwrap_or(sel);
+                        }
+                        keep(self, sel, search, purpose);
+                    }
+                    KeyCode::Char(c) if !ctrl => {
+                        search.push(c);
+                        let l = choose_listed(&items, &search);
+                        if !l.contains(&sel) {
+                            sel = l.first().copied().unwrap_or(sel);
+                        }
+                        keep(self, sel, search, purpose);
+                    }
+                    KeyCode::Enter if at.is_none() => {
+                        self.error(format!("nothing matches \"{search}\""));
+                        keep(self, sel, search, purpose);
+                    }
+                    KeyCode::Enter => match purpose {
+                        ChooseFor::Kind => self.set_kind(sel),
+                        ChooseFor::Mode(list) => {
+                            if let Some(k) = list.into_iter().nth(sel) {
+                                self.set_mode(k);
                             }
-                            None => Ok(()),
-                        };
-                        if let Err(e) = r {
-                            self.error(e);
-                            self.popups.push(Popup::Choose {
-                                title,
-                                items,
-                                sel,
-                                purpose: ChooseFor::Start(list),
-                            });
                         }
-                    }
-                },
-                _ => self.popups.push(Popup::Choose {
-                    title,
-                    items,
-                    sel,
-                    purpose,
-                }),
-            },
+                        ChooseFor::Statics => self.set_statics(sel),
+                        ChooseFor::MixerSecondary(row, names) => {
+                            if let Some(n) = names.get(sel) {
+                                self.make_mixer(row, n);
+                            }
+                        }
+                        ChooseFor::Shaft(row, names) => self.pick_shaft(row, &names, sel),
+                        ChooseFor::Start(list) => {
+                            let r = match list.get(sel) {
+                                Some(StartItem::File(f)) => self.open(f),
+                                Some(StartItem::Template(t)) => self.open_template(t),
+                                Some(StartItem::Recovery(rp, target)) => {
+                                    let (rp, target) = (rp.clone(), target.clone());
+                                    self.open_recovered(&rp, target)
+                                }
+                                None => Ok(()),
+                            };
+                            if let Err(e) = r {
+                                self.error(e);
+                                keep(self, sel, search, ChooseFor::Start(list));
+                            }
+                        }
+                    },
+                    _ => keep(self, sel, search, purpose),
+                }
+            }
             Popup::ScanList { mut sel, flagged } => {
                 let n = self.scans.as_ref().map_or(0, |sb| sb.listed(flagged).len());
                 match code {
@@ -948,6 +1052,24 @@ impl App {
                                         input: Field::with(t),
                                     });
                                 }
+                            }
+                            Some(SetupRow::Title) => {
+                                let t = self.book().map_or(String::new(), |b| b.title.clone());
+                                self.popups.push(Popup::Text {
+                                    title: "title of the workbook".into(),
+                                    input: Field::with(t),
+                                    purpose: TextFor::Title,
+                                });
+                            }
+                            Some(SetupRow::Note) => {
+                                let t = self.book().map_or(String::new(), |b| b.note.clone());
+                                self.popups.push(Popup::Text {
+                                    title:
+                                        "note (what the workbook is for, where its data came from)"
+                                            .into(),
+                                    input: Field::with(t),
+                                    purpose: TextFor::Note,
+                                });
                             }
                             Some(r) => self.toggle_setup(r.clone()),
                             None => {}
@@ -1037,6 +1159,20 @@ impl App {
                 };
                 self.insert_station(i, &name)
             }
+            TextFor::SplitBypass(row) => self.make_split(row, input.trim()),
+            TextFor::NewShaft(row) => self.new_shaft(row, input.trim()),
+            TextFor::Title => {
+                if let Some(mut nb) = self.book().cloned() {
+                    nb.title = input.trim().to_string();
+                    self.commit(nb, "title changed");
+                }
+            }
+            TextFor::Note => {
+                if let Some(mut nb) = self.book().cloned() {
+                    nb.note = input.trim().to_string();
+                    self.commit(nb, "note changed");
+                }
+            }
             TextFor::SaveAs => {
                 let p = PathBuf::from(input.trim());
                 if p.as_os_str().is_empty() {
@@ -1062,7 +1198,7 @@ impl App {
 
     /// Rows of the set-up popup.
     pub fn setup_rows(&self) -> Vec<SetupRow> {
-        let mut rows = vec![SetupRow::Condition];
+        let mut rows = vec![SetupRow::Title, SetupRow::Note, SetupRow::Condition];
         if let Some(b) = self.book() {
             for (p, ..) in b.givens() {
                 if p.starts_with("ambient.")
@@ -1144,7 +1280,7 @@ impl App {
                     "results will not be stored"
                 }
             }
-            SetupRow::Given(_) => return,
+            SetupRow::Given(_) | SetupRow::Title | SetupRow::Note => return,
         };
         if let Err(e) = nb.resolve() {
             self.error(crate::present::join(&e));
@@ -1157,6 +1293,10 @@ impl App {
 /// Rows of the set-up popup.
 #[derive(Debug, Clone, PartialEq)]
 pub enum SetupRow {
+    /// The workbook's title (Enter edits).
+    Title,
+    /// The workbook's note (Enter edits).
+    Note,
     /// Standard atmosphere or measured ambient (toggles).
     Condition,
     /// Flight Mach or speed (toggles).

@@ -186,7 +186,7 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
     (
         Command::Setup,
         "open-setup",
-        "ambient block and gas model",
+        "title, note, ambient block and gas model",
         &["g"],
     ),
     (
@@ -211,13 +211,13 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
     (
         Command::PageDown,
         "page-down",
-        "scroll the walk explanation or the sweep table down",
+        "scroll down: the walk explanation, the sweep table, the grid's panel and summary",
         &["PageDown", "ctrl-f"],
     ),
     (
         Command::PageUp,
         "page-up",
-        "scroll the walk explanation or the sweep table up",
+        "scroll up: the walk explanation, the sweep table, the grid's panel and summary",
         &["PageUp", "ctrl-b"],
     ),
     (Command::Help, "help", "this help", &["?", "F1"]),

@@ -6,7 +6,8 @@
 //! marker as well as the reverse attribute, so none of this relies on colour.
 
 use super::app::{
-    App, Focus, Origin, PanelRow, Popup, ScanMark, SetupRow, View, scan_label, station_problem,
+    App, Focus, Origin, PanelRow, Popup, ScanMark, SetupRow, View, choose_listed, scan_label,
+    station_problem,
 };
 use super::keymap::COMMANDS;
 use super::plot::{self, Series};
@@ -462,6 +463,7 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
         lines.push(Line::from(Span::styled(problem, th.bad())));
     }
     let rows = app.panel_rows();
+    let mut keep = None;
     for (i, r) in rows.iter().enumerate() {
         let sel = app.focus == Focus::Panel && i == app.panel;
         let marker = if sel { ">" } else { " " };
@@ -469,9 +471,11 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
             PanelRow::Given(path) => match given_line(app, path) {
                 Some((field, val, _)) => {
                     let owner = if path.starts_with("station.") {
-                        "station"
+                        "station".to_string()
+                    } else if let Some(rest) = path.strip_prefix("shaft.") {
+                        format!("shaft {}", rest.rsplit_once('.').map_or(rest, |(n, _)| n))
                     } else {
-                        ""
+                        String::new()
                     };
                     (
                         format!("{marker} {:<14} = {val} {owner}", field),
@@ -493,6 +497,33 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
                 ),
                 Style::default(),
             ),
+            PanelRow::Shaft => (
+                format!(
+                    "{marker} shaft          : {} (Enter picks)",
+                    crate::kinds::of(&p.kind).shaft().unwrap_or("none")
+                ),
+                Style::default(),
+            ),
+            PanelRow::ShaftOptional(what) => {
+                let has = crate::kinds::of(&p.kind)
+                    .shaft()
+                    .and_then(|s| e.book().shafts.iter().find(|x| x.name == s))
+                    .is_some_and(|sh| match *what {
+                        "offtake" => sh.offtake.is_some(),
+                        _ => sh.speed.is_some(),
+                    });
+                (
+                    format!(
+                        "{marker} shaft {what:<8} : {}",
+                        if has {
+                            "given (Enter removes)"
+                        } else {
+                            "none (Enter adds)"
+                        }
+                    ),
+                    Style::default(),
+                )
+            }
             PanelRow::Branch => (
                 format!(
                     "{marker} branch         : {} (Enter toggles)",
@@ -504,6 +535,9 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
                 Style::default(),
             ),
         };
+        if sel {
+            keep = Some(lines.len());
+        }
         lines.push(Line::from(Span::styled(
             text,
             if sel { style.patch(th.sel()) } else { style },
@@ -539,12 +573,72 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
     } else {
         format!("{title}(Tab: edit) ")
     };
+    let (lines, more) = window(lines, area, app.scroll as usize, keep);
     f.render_widget(
-        Paragraph::new(lines)
-            .block(th.block(title))
-            .wrap(Wrap { trim: false }),
+        Paragraph::new(lines).block(
+            th.block(title)
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
         area,
     );
+}
+
+/// Lines wrapped to the inside of `area` (a continuation indented by two),
+/// then the part that fits: from `scroll` down, moved so that line `keep`
+/// (before wrapping) is shown. When not all fit, the second value says
+/// which lines are shown and how to scroll, for the block's title.
+fn window(
+    lines: Vec<Line<'static>>,
+    area: Rect,
+    scroll: usize,
+    keep: Option<usize>,
+) -> (Vec<Line<'static>>, String) {
+    let width = area.width.saturating_sub(2) as usize;
+    let height = area.height.saturating_sub(2) as usize;
+    let mut out: Vec<Line<'static>> = Vec::new();
+    let mut keep_at = None;
+    for (i, l) in lines.into_iter().enumerate() {
+        if Some(i) == keep {
+            keep_at = Some(out.len());
+        }
+        let text: String = l.spans.iter().map(|s| s.content.as_ref()).collect();
+        if text.chars().count() <= width || l.spans.len() != 1 {
+            out.push(l);
+            continue;
+        }
+        let style = l.spans[0].style.patch(l.style);
+        for (j, part) in hang(&text, width, 2).into_iter().enumerate() {
+            let part = if j == 0 {
+                part.trim_start().to_string()
+            } else {
+                part
+            };
+            out.push(Line::from(Span::styled(part, style)));
+        }
+    }
+    let n = out.len();
+    if n <= height || height == 0 {
+        return (out, String::new());
+    }
+    let mut top = scroll.min(n - height);
+    if let Some(k) = keep_at {
+        if k < top {
+            top = k;
+        } else if k >= top + height {
+            top = k + 1 - height;
+        }
+    }
+    let shown: Vec<Line<'static>> = out.into_iter().skip(top).take(height).collect();
+    (
+        shown,
+        format!(
+            " lines {}-{} of {n}{}{} ",
+            top + 1,
+            top + height,
+            if top > 0 { " ^" } else { "" },
+            if top + height < n { " v PgDn" } else { " PgUp" }
+        ),
+    )
 }
 
 fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMap, String)>) {
@@ -623,7 +717,14 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
             lines.push(Line::from(Span::styled(format!(" {}", p.place), th.bad())));
         }
     }
-    f.render_widget(Paragraph::new(lines).block(th.block(" summary ")), area);
+    let (lines, more) = window(lines, area, app.scroll as usize, None);
+    f.render_widget(
+        Paragraph::new(lines).block(
+            th.block(" summary ")
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
+        area,
+    );
 }
 
 fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
@@ -1013,15 +1114,20 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             );
         }
         Popup::Choose {
-            title, items, sel, ..
+            title,
+            items,
+            sel,
+            search,
+            ..
         } => {
+            let listed = choose_listed(items, search);
             let w = 76.min(area.width);
             let inner = w.saturating_sub(2) as usize;
             // An item wider than the popup is cut with a ~, and the selected
             // one is shown whole under the list.
             let detail = items
                 .get(*sel)
-                .filter(|s| s.chars().count() + 2 > inner)
+                .filter(|s| s.chars().count() + 2 > inner && listed.contains(sel))
                 .map(|s| hang(s, inner, 0))
                 .unwrap_or_default();
             let extra = if detail.is_empty() {
@@ -1029,22 +1135,18 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             } else {
                 detail.len() as u16 + 1
             };
-            let h = (items.len() as u16 + 4 + extra).min(area.height);
+            let h = (listed.len().max(1) as u16 + 4 + extra).min(area.height);
             let r = centered(area, w, h);
             clear_around(f, r, area);
             let visible = h.saturating_sub(3 + extra) as usize;
-            let skip = if *sel >= visible {
-                sel + 1 - visible
-            } else {
-                0
-            };
-            let mut lines: Vec<Line> = items
+            let at = listed.iter().position(|i| i == sel).unwrap_or(0);
+            let skip = if at >= visible { at + 1 - visible } else { 0 };
+            let mut lines: Vec<Line> = listed
                 .iter()
-                .enumerate()
                 .skip(skip)
                 .take(visible)
-                .map(|(i, s)| {
-                    let t = fit_left(s, inner.saturating_sub(2));
+                .map(|&i| {
+                    let t = fit_left(&items[i], inner.saturating_sub(2));
                     if i == *sel {
                         Line::from(Span::styled(format!("> {t}"), th.sel()))
                     } else {
@@ -1052,22 +1154,32 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                     }
                 })
                 .collect();
+            if listed.is_empty() {
+                lines.push(Line::from(Span::styled(
+                    format!("  nothing contains \"{search}\""),
+                    th.bad(),
+                )));
+            }
             if !detail.is_empty() {
                 lines.push(Line::from(Span::styled("-".repeat(inner), th.dim())));
                 lines.extend(detail.into_iter().map(Line::from));
             }
-            let more = if items.len() > visible {
+            let more = if listed.len() > visible {
                 format!(
                     " ({}-{} of {})",
                     skip + 1,
-                    (skip + visible).min(items.len()),
-                    items.len()
+                    (skip + visible).min(listed.len()),
+                    listed.len()
                 )
             } else {
                 String::new()
             };
             lines.push(Line::from(Span::styled(
-                "Up/Down choose, Enter take, Esc back",
+                if search.is_empty() {
+                    "Up/Down choose, type to search, Enter take, Esc back".to_string()
+                } else {
+                    format!("search: {search}  (Backspace edits, Esc clears)")
+                },
                 th.dim(),
             )));
             f.render_widget(
@@ -1084,6 +1196,11 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let mut lines = Vec::new();
             for (i, row) in rows.iter().enumerate() {
                 let text = match (row, b) {
+                    (SetupRow::Title, Some(b)) => format!("title            : {}", b.title),
+                    (SetupRow::Note, Some(b)) => format!(
+                        "note             : {}",
+                        if b.note.is_empty() { "(none)" } else { &b.note }
+                    ),
                     (SetupRow::Condition, Some(b)) => format!(
                         "ambient          : {}",
                         match b.ambient.condition {
@@ -1139,7 +1256,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 th.dim(),
             )));
             f.render_widget(
-                Paragraph::new(lines).block(th.block(" ambient and gas ")),
+                Paragraph::new(lines).block(th.block(" workbook, ambient and gas ")),
                 r,
             );
         }

@@ -343,6 +343,7 @@ impl App {
             .map(|s| s.to_string())
             .collect(),
             sel: cur,
+            search: String::new(),
             purpose: ChooseFor::Statics,
         });
     }
@@ -446,6 +447,7 @@ impl App {
             ),
             items,
             sel: 0,
+            search: String::new(),
             purpose: ChooseFor::Mode(list),
         });
     }
@@ -564,6 +566,40 @@ impl App {
             });
             return;
         }
+        // A split needs its new bypass station, a mixer its second stream.
+        match &kind {
+            Kind::Split(s) if s.bypass.is_empty() => {
+                let row = self.row;
+                let suggest = format!("{}b", nb.stations[row].name);
+                self.popups.push(Popup::Text {
+                    title: format!(
+                        "name of the new bypass station (the split's second stream; Enter alone: {suggest})"
+                    ),
+                    input: Field::default(),
+                    purpose: TextFor::SplitBypass(row),
+                });
+                return;
+            }
+            Kind::Mixer(m) if m.secondary.is_empty() => {
+                let row = self.row;
+                let names = self.mixer_candidates(row);
+                if names.is_empty() {
+                    self.error(
+                        "a mixer needs a second stream: a station no process reads (the end of a bypass) that is not downstream of this one",
+                    );
+                    return;
+                }
+                self.popups.push(Popup::Choose {
+                    title: "the mixer's second stream (a station no process reads yet)".into(),
+                    items: names.clone(),
+                    sel: 0,
+                    search: String::new(),
+                    purpose: ChooseFor::MixerSecondary(row, names),
+                });
+                return;
+            }
+            _ => {}
+        }
         p.kind = kind;
         self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
@@ -571,5 +607,252 @@ impl App {
             return;
         }
         self.commit(nb, &format!("process is now: {label}"));
+    }
+
+    /// Make the process into station `row` a split whose bypass goes to a
+    /// new station `name`, listed after `row`.
+    pub(super) fn make_split(&mut self, row: usize, name: &str) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let name = if name.is_empty() {
+            format!("{}b", nb.stations[row].name)
+        } else {
+            name.to_string()
+        };
+        if nb.stations.iter().any(|s| s.name == name) {
+            self.error(format!("station name \"{name}\" is already used"));
+            return;
+        }
+        let pi = e.producer_of(row);
+        nb.processes[pi].kind = Kind::Split(crate::book::Split {
+            bypass_ratio: Given::raw("1"),
+            bypass: name.clone(),
+        });
+        self.sync_measured(&mut nb, pi);
+        nb.stations.insert(row + 1, Station::named(&name));
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        nb.results = None;
+        self.commit(
+            nb,
+            &format!("process is now a split; its bypass goes to the new station {name}"),
+        );
+    }
+
+    /// Stations a mixer into `row` can take its second stream from: read by
+    /// no process, not `row` itself and not downstream of it.
+    pub(super) fn mixer_candidates(&self, row: usize) -> Vec<String> {
+        let Some(b) = self.book() else {
+            return Vec::new();
+        };
+        let here = &b.stations[row].name;
+        let read = |n: &str| {
+            b.processes.iter().any(|p| {
+                p.from.as_deref() == Some(n) || crate::kinds::of(&p.kind).second_input() == Some(n)
+            })
+        };
+        // Downstream of `row`: follow the processes from it.
+        let mut down = vec![here.clone()];
+        let mut i = 0;
+        while i < down.len() {
+            let s = down[i].clone();
+            for p in &b.processes {
+                let reads_s = p.from.as_deref() == Some(s.as_str())
+                    || crate::kinds::of(&p.kind).second_input() == Some(s.as_str());
+                if reads_s && !down.contains(&p.to) {
+                    down.push(p.to.clone());
+                    if let Some(o) = crate::kinds::of(&p.kind).second_output()
+                        && !down.iter().any(|d| d == o)
+                    {
+                        down.push(o.to_string());
+                    }
+                }
+            }
+            i += 1;
+        }
+        b.stations
+            .iter()
+            .map(|s| s.name.clone())
+            .filter(|n| !read(n) && !down.contains(n))
+            .collect()
+    }
+
+    /// Make the process into station `row` a mixer of its stream and `secondary`.
+    pub(super) fn make_mixer(&mut self, row: usize, secondary: &str) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(row);
+        nb.processes[pi].kind = Kind::Mixer(crate::book::Mixer {
+            secondary: secondary.to_string(),
+        });
+        self.sync_measured(&mut nb, pi);
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(
+            nb,
+            &format!("process is now a mixer of its stream and station {secondary}"),
+        );
+    }
+
+    /// The shaft chooser for the machine into station `row`.
+    pub(super) fn choose_shaft(&mut self) {
+        let Some(b) = self.book() else {
+            return;
+        };
+        let row = self.row;
+        let mut names: Vec<String> = b.shafts.iter().map(|s| s.name.clone()).collect();
+        let mut items: Vec<String> = names
+            .iter()
+            .map(|n| {
+                let on: Vec<&str> = b
+                    .processes
+                    .iter()
+                    .filter(|p| crate::kinds::of(&p.kind).shaft() == Some(n.as_str()))
+                    .map(|p| p.name.as_str())
+                    .collect();
+                format!(
+                    "shaft {n}{}",
+                    if on.is_empty() {
+                        String::new()
+                    } else {
+                        format!(" (with {})", on.join(", "))
+                    }
+                )
+            })
+            .collect();
+        items.push("no shaft (a compressor driven from outside, a turbine given its ratio)".into());
+        items.push("a new shaft...".into());
+        names.push(String::new());
+        names.push(String::new());
+        self.popups.push(Popup::Choose {
+            title: "shaft of this machine".into(),
+            items,
+            sel: 0,
+            search: String::new(),
+            purpose: ChooseFor::Shaft(row, names),
+        });
+    }
+
+    /// Add or remove a shaft's optional value (offtake, speed) of the
+    /// machine into the selected station.
+    pub(super) fn toggle_shaft_value(&mut self, what: &str) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(self.row);
+        let Some(name) = crate::kinds::of(&nb.processes[pi].kind)
+            .shaft()
+            .map(str::to_string)
+        else {
+            return;
+        };
+        let Some(sh) = nb.shafts.iter_mut().find(|s| s.name == name) else {
+            return;
+        };
+        let (slot, fresh) = match what {
+            "offtake" => (&mut sh.offtake, "0 kW"),
+            _ => (&mut sh.speed, "10000 rpm"),
+        };
+        let msg = if slot.is_some() {
+            *slot = None;
+            format!("shaft {name}: {what} removed")
+        } else {
+            *slot = Some(Given::raw(fresh));
+            format!("shaft {name}: {what} added ({fresh}; Enter on it edits)")
+        };
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(nb, &msg);
+    }
+
+    /// Put the machine into station `row` on shaft `names[sel]` (the last
+    /// two entries: none, and a new shaft).
+    pub(super) fn pick_shaft(&mut self, row: usize, names: &[String], sel: usize) {
+        let n = names.len();
+        if sel + 1 == n {
+            self.popups.push(Popup::Text {
+                title: "name of the new shaft".into(),
+                input: Field::default(),
+                purpose: TextFor::NewShaft(row),
+            });
+            return;
+        }
+        let shaft = if sel + 2 == n {
+            None
+        } else {
+            names.get(sel).cloned()
+        };
+        self.set_shaft(row, shaft, None);
+    }
+
+    /// A new shaft (mechanical efficiency 0.99) with the machine into `row` on it.
+    pub(super) fn new_shaft(&mut self, row: usize, name: &str) {
+        if name.is_empty() {
+            self.error("a shaft needs a name");
+            return;
+        }
+        if self
+            .book()
+            .is_some_and(|b| b.shafts.iter().any(|s| s.name == name))
+        {
+            self.error(format!("shaft name \"{name}\" is already used"));
+            return;
+        }
+        self.set_shaft(row, Some(name.to_string()), Some(name.to_string()));
+    }
+
+    fn set_shaft(&mut self, row: usize, shaft: Option<String>, create: Option<String>) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let pi = e.producer_of(row);
+        if let Some(name) = &create {
+            nb.shafts.push(crate::book::Shaft {
+                name: name.clone(),
+                mechanical_efficiency: Given::raw("0.99"),
+                offtake: None,
+                speed: None,
+            });
+        }
+        let slot = match &mut nb.processes[pi].kind {
+            Kind::Compressor(c) => &mut c.shaft,
+            Kind::Turbine(t) => &mut t.shaft,
+            _ => {
+                self.error("only compressors and turbines sit on a shaft");
+                return;
+            }
+        };
+        *slot = shaft.clone();
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        self.commit(
+            nb,
+            &match shaft {
+                Some(s) => format!("on shaft {s}"),
+                None => "on no shaft".into(),
+            },
+        );
     }
 }

@@ -45,6 +45,7 @@ impl App {
             title: "stationwise: open a recent workbook or start from a demo".into(),
             items: labels,
             sel: 0,
+            search: String::new(),
             purpose: ChooseFor::Start(items),
         });
     }
