@@ -114,7 +114,7 @@ else:
     import subprocess
     listing = subprocess.run([binary, "new", "--list"], capture_output=True, text=True).stdout
     order = [l.split()[0] for l in listing.splitlines() if l.strip()]
-    keys(["j"] * order.index("turbojet") + ["\r"])
+    keys(["\x1b[B"] * order.index("turbojet") + ["\r"])
     if not pump(b"stations", 10):
         fail("the demo did not open")
 keys(["j", "j", "\t", "j", "j", "\r", "\x15", "1", "2", "\r"])

@@ -16,6 +16,8 @@
 #
 # 4. Comments: the same edit on a commented copy of the turbojet; the saved
 #    file differs from the original in the edited line only.
+# 5. Build: a two-spool turbofan built from the blank template by keys only
+#    (turbofan_keys.txt), saved; its eval equals the turbofan demo's.
 #
 # Uses python3 and tui-drive / ttykit.py kept beside this script (copies of
 # the project's shared tools, so CI does not depend on them). Settings and
@@ -212,7 +214,7 @@ for case in saved new untitled; do
       new) reopen=("$work/fresh.ron"); offer='recover unsaved work for' ;;
       untitled) reopen=(); offer='recover the untitled workbook' ;;
     esac
-    if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:$offer" --expect "$offer" \
+    if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:${offer// /\\s}" --expect "$offer" \
       --out "$work/reopen.txt" -- "$BIN" "${reopen[@]}" 2>/dev/null; then
       pass "closed terminal ($case/$role): reopening offers the recovery"
     else
@@ -220,7 +222,7 @@ for case in saved new untitled; do
     fi
     if [ "$case" != saved ]; then
       # Choosing the offer (the first entry) loads the edit, marked unsaved.
-      if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:$offer Enter $TO_PR" \
+      if XDG_CONFIG_HOME="$work/config" XDG_DATA_HOME="$work/data" "${DRIVE[@]}" --keys "wait:${offer// /\\s} Enter $TO_PR" \
         --expect 'pressure_ratio = 12' --out "$work/loaded.txt" -- "$BIN" "${reopen[@]}" 2>/dev/null; then
         pass "closed terminal ($case/$role): the recovered edit is loaded"
       else
@@ -248,6 +250,55 @@ if "${DRIVE[@]}" --keys "$TO_PR Enter ctrl-u 1 2 Enter wait:recomputed ctrl-s wa
   fi
 else
   fail "comments: tui-drive failed: $(cat "$TMP/comments/status.txt")"
+fi
+
+# ------------------------------------------------------------------ case 5
+# A two-spool separate-flow turbofan built by keys only from the blank
+# template (the keys in turbofan_keys.txt, which tests/tui_build.rs checks
+# against the same build driven without a terminal), saved with ctrl-s;
+# `eval` of the saved file must give the turbofan demo's station values and
+# summary to 1e-9 relative.
+mkdir -p "$TMP/build"
+KEYS=$(cat "$HERE/turbofan_keys.txt")
+if python3 "$HERE/tui-drive" --size 80x24 --timeout 120 --delay 0.03 --keys "$KEYS wait:saved q" \
+  --out "$TMP/build/screen.txt" -- "$BIN" "$TMP/build/built.ron" 2>"$TMP/build/status.txt"; then
+  pass "build a turbofan by keys: $(wc -w <"$HERE/turbofan_keys.txt") key tokens sent"
+else
+  fail "build a turbofan by keys: tui-drive failed: $(cat "$TMP/build/status.txt"); screen: $(cat "$TMP/build/screen.txt")"
+fi
+if [ -f "$TMP/build/built.ron" ] && python3 - "$BIN" "$TMP/build/built.ron" "$ROOT/sheets/turbofan.ron" <<'PY'; then
+import json, subprocess, sys
+binary, built, demo = sys.argv[1:4]
+def ev(path):
+    out = subprocess.run([binary, "eval", path, "--format", "json"], capture_output=True, text=True)
+    if out.returncode != 0:
+        sys.exit(f"eval {path}: exit {out.returncode}: {out.stderr}")
+    return json.loads(out.stdout)
+a, b = ev(demo), ev(built)
+sa = {s["name"]: s for s in a["stations"]}
+sb = {s["name"]: s for s in b["stations"]}
+n = 0
+def close(x, y, what):
+    global n
+    if isinstance(x, (int, float)) and isinstance(y, (int, float)):
+        if abs(x - y) > 1e-9 * max(abs(x), abs(y)):
+            sys.exit(f"{what}: demo {x}, built {y}")
+        n += 1
+    elif x != y and not (isinstance(x, str) or isinstance(y, str)):
+        sys.exit(f"{what}: demo {x}, built {y}")
+for name, s in sa.items():
+    if name not in sb:
+        sys.exit(f"station {name} missing from the built workbook")
+    for k, v in s.items():
+        if k not in ("name", "via"):
+            close(v, sb[name].get(k), f"station {name} {k}")
+for k, v in a["summary"].items():
+    close(v, b["summary"].get(k), f"summary {k}")
+print(f"{n} values agree", file=sys.stderr)
+PY
+  pass "the built turbofan evaluates to the demo's numbers"
+else
+  fail "the built turbofan differs from the demo (see above)"
 fi
 
 if [ "$failures" -ne 0 ]; then

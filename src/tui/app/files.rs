@@ -100,7 +100,7 @@ impl App {
             .map_or("save with ctrl-s".to_string(), |p| {
                 format!("ctrl-s saves it as {}", p.display())
             });
-        self.info(format!("new workbook from the {name} demo ({target})"));
+        self.info(format!("new workbook from the {name} template ({target})"));
         Ok(())
     }
 
