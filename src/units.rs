@@ -81,11 +81,18 @@ pub enum Quantity {
     ThrustSpecificFuelConsumption,
     /// Thrust per unit air mass flow; SI N s/kg.
     SpecificThrust,
+    /// A difference of pressures (dynamic pressure, a differential
+    /// reading): SI Pa, shown in psi rather than psia in US units.
+    PressureDifference,
+    /// Per unit length (a Reynolds number per metre): SI 1/m.
+    PerLength,
+    /// Flow function W sqrt(Tt)/(A pt): SI kg K^0.5/(N s).
+    FlowFunction,
 }
 
 impl Quantity {
     /// Every quantity, in declaration order.
-    pub const ALL: [Quantity; 20] = [
+    pub const ALL: [Quantity; 23] = [
         Quantity::Temperature,
         Quantity::TemperatureDifference,
         Quantity::Pressure,
@@ -106,6 +113,9 @@ impl Quantity {
         Quantity::Time,
         Quantity::ThrustSpecificFuelConsumption,
         Quantity::SpecificThrust,
+        Quantity::PressureDifference,
+        Quantity::PerLength,
+        Quantity::FlowFunction,
     ];
 
     /// The quantity's name in lower case, as used in messages.
@@ -131,6 +141,9 @@ impl Quantity {
             Quantity::Time => "time",
             Quantity::ThrustSpecificFuelConsumption => "thrust-specific fuel consumption",
             Quantity::SpecificThrust => "specific thrust",
+            Quantity::PressureDifference => "pressure difference",
+            Quantity::PerLength => "quantity per length",
+            Quantity::FlowFunction => "flow function",
         }
     }
 
@@ -167,6 +180,9 @@ impl Quantity {
             Quantity::Time => &S,
             Quantity::ThrustSpecificFuelConsumption => &KG_N_S,
             Quantity::SpecificThrust => &N_S_KG,
+            Quantity::PressureDifference => &DP_PA,
+            Quantity::PerLength => &PER_M,
+            Quantity::FlowFunction => &FF_SI,
         }
     }
 
@@ -469,6 +485,29 @@ static LBF_S_LBM: Unit = Unit::new(
     &["lbf/(lbm/s)", "lbf s/lb", "lbf/(lb/s)"],
 );
 
+static DP_PA: Unit = Unit::new("Pa", Q::PressureDifference, 1.0, &["Pad"]);
+static DP_KPA: Unit = Unit::new("kPa", Q::PressureDifference, 1.0e3, &["kPad"]);
+static DP_BAR: Unit = Unit::new("bar", Q::PressureDifference, 1.0e5, &["bard"]);
+static DP_MBAR: Unit = Unit::new("mbar", Q::PressureDifference, 100.0, &["mBar"]).case_sensitive();
+// "psid", the trade's differential psi: "psi" alone is psia in this
+// program, and one spelling never means two units.
+static DP_PSI: Unit = Unit::new("psid", Q::PressureDifference, LBF / (INCH * INCH), &[]);
+
+static PER_M: Unit = Unit::new("/m", Q::PerLength, 1.0, &["per m", "per metre"]);
+static PER_FT: Unit = Unit::new("/ft", Q::PerLength, 1.0 / FT, &["per ft", "per foot"]);
+
+static FF_SI: Unit = Unit::new("kg K^0.5/(N s)", Q::FlowFunction, 1.0, &["kg K^0.5/N/s"]);
+/// lbm R^0.5/(lbf s): the US form of W sqrt(Tt)/(A pt), with A in in2 and
+/// pt in psia folded into the lbf.
+static FF_US: Unit = Unit::new(
+    "lbm R^0.5/(lbf s)",
+    Q::FlowFunction,
+    // 1 lbm sqrt(degR) / (1 lbf 1 s) in kg sqrt(K) / (N s): sqrt(5/9) for
+    // the root of the temperature scale.
+    LBM * 0.745_355_992_499_929_9 / LBF,
+    &["lbm R^0.5/lbf/s"],
+);
+
 /// Every unit, grouped by quantity; within a quantity the first is what a
 /// bare number means.
 static UNITS: &[&Unit] = &[
@@ -544,6 +583,15 @@ static UNITS: &[&Unit] = &[
     &LBM_LBF_H,
     &N_S_KG,
     &LBF_S_LBM,
+    &DP_PA,
+    &DP_KPA,
+    &DP_BAR,
+    &DP_MBAR,
+    &DP_PSI,
+    &PER_M,
+    &PER_FT,
+    &FF_SI,
+    &FF_US,
 ];
 
 /// Bare letters that engineers type for temperatures but which this module
@@ -1063,6 +1111,12 @@ pub fn display_unit(quantity: Quantity, system: UnitSystem) -> &'static Unit {
         (Q::ThrustSpecificFuelConsumption, Us) => &LBM_LBF_H,
         (Q::SpecificThrust, Si) => &N_S_KG,
         (Q::SpecificThrust, Us) => &LBF_S_LBM,
+        (Q::PressureDifference, Si) => &DP_KPA,
+        (Q::PressureDifference, Us) => &DP_PSI,
+        (Q::PerLength, Si) => &PER_M,
+        (Q::PerLength, Us) => &PER_FT,
+        (Q::FlowFunction, Si) => &FF_SI,
+        (Q::FlowFunction, Us) => &FF_US,
     }
 }
 
@@ -1629,6 +1683,34 @@ mod tests {
             e.to_string(),
             "duct length \"12 furlongs\": \"furlongs\" is not a known unit; a length accepts \
              m, cm, mm, in, ft, km (a bare number is m)"
+        );
+    }
+
+    #[test]
+    fn pressure_differences_flow_function_and_per_length_in_us_units() {
+        // A pressure difference is psi, not psia (1 psi = 6894.757 Pa, NIST SP 811).
+        assert_eq!(
+            format(6894.757, Q::PressureDifference, UnitSystem::Us),
+            "1 psid"
+        );
+        assert_relative_eq!(
+            si("2 psid", Q::PressureDifference),
+            13_789.514,
+            max_relative = 1e-6
+        );
+        // The choked flow function of air (gamma 1.4, R 287.05): sqrt(gamma/R)
+        // (2/(gamma+1))^((gamma+1)/(2(gamma-1))) = 0.0404 kg K^0.5/(N s),
+        // the trade's 0.5318 lbm R^0.5/(lbf s) (from memory).
+        let g: f64 = 1.4;
+        let ff = (g / 287.05).sqrt() * (2.0 / (g + 1.0)).powf((g + 1.0) / (2.0 * (g - 1.0)));
+        assert_relative_eq!(ff, 0.0404, max_relative = 1e-3);
+        let us = from_si(ff, display_unit(Q::FlowFunction, UnitSystem::Us));
+        assert!((us - 0.5318).abs() < 5e-4, "{us}");
+        // Per metre to per foot: 0.3048 m in a foot.
+        assert_relative_eq!(
+            from_si(1.0e6, display_unit(Q::PerLength, UnitSystem::Us)),
+            304_800.0,
+            max_relative = 1e-12
         );
     }
 

@@ -185,8 +185,12 @@ pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
     ("ht", "ht", Quantity::SpecificEnergy),
     ("s", "s", Quantity::SpecificHeat),
     ("wc", "Wc", Quantity::MassFlow),
-    ("q", "q", Quantity::Pressure),
-    ("flow_function", "W\u{221a}Tt/(A pt)", Quantity::Ratio),
+    ("q", "q", Quantity::PressureDifference),
+    (
+        "flow_function",
+        "W\u{221a}Tt/(A pt)",
+        Quantity::FlowFunction,
+    ),
     ("gamma", "gamma", Quantity::Ratio),
 ];
 

@@ -223,7 +223,29 @@ fn fit(s: &str, w: usize) -> String {
 /// A grid cell: right-aligned in CELL_W with at least one space before it,
 /// so long labels or values never run into the column to their left.
 fn cell(s: &str) -> String {
-    format!(" {}", fit(s, CELL_W - 1))
+    cell_w(s, CELL_W)
+}
+
+/// A grid cell `w` wide.
+fn cell_w(s: &str, w: usize) -> String {
+    format!(" {}", fit(s, w - 1))
+}
+
+/// Width of a grid column: CELL_W, or its unit in brackets and a space.
+fn col_width(key: &str, system: units::UnitSystem) -> usize {
+    let (_, q) = key_meta(key);
+    CELL_W.max(unit_label(q, system).chars().count() + 3)
+}
+
+/// The column's header in the grid: short enough for its cell, ASCII in
+/// plain drawing.
+fn grid_label(key: &str, label: &str, ascii: bool) -> String {
+    match key {
+        "flow_function" if ascii => "W.rtTt/Apt".into(),
+        "flow_function" => "W\u{221a}Tt/Apt".into(),
+        _ if ascii && !label.is_ascii() => key.into(),
+        _ => label.into(),
+    }
 }
 
 fn fit_left(s: &str, w: usize) -> String {
@@ -247,19 +269,35 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let unc = app.uncertainties();
     let pm = if th.ascii { "+/-" } else { "\u{b1}" };
     let inner_w = ga.width.saturating_sub(2) as usize;
-    let fit_cols = ((inner_w.saturating_sub(NAME_W + VIA_W + 2)) / CELL_W).max(1);
-    let fit_cols = if unc.is_some() {
-        (fit_cols - 1).max(1)
-    } else {
-        fit_cols
-    };
     let sel_key = keys[app.col.min(keys.len() - 1)];
-    let first = if app.col >= fit_cols {
-        app.col + 1 - fit_cols
-    } else {
-        0
+    // Each column as wide as its unit needs (at least CELL_W); the
+    // uncertainty column beside the selected one takes a cell too.
+    let width_of = |k: &str| {
+        let w = col_width(k, app.system);
+        if unc.is_some() && k == sel_key {
+            w + CELL_W
+        } else {
+            w
+        }
     };
-    let shown: Vec<&str> = keys.iter().skip(first).take(fit_cols).copied().collect();
+    let room = inner_w.saturating_sub(NAME_W + VIA_W + 2);
+    let col = app.col.min(keys.len() - 1);
+    // The first column shown: as far left as lets the selected one fit.
+    let mut first = col;
+    let mut used = width_of(keys[col]);
+    while first > 0 && used + width_of(keys[first - 1]) <= room {
+        first -= 1;
+        used += width_of(keys[first]);
+    }
+    let mut shown: Vec<&str> = Vec::new();
+    let mut used = 0;
+    for k in keys.iter().skip(first) {
+        if !shown.is_empty() && used + width_of(k) > room {
+            break;
+        }
+        used += width_of(k);
+        shown.push(k);
+    }
     let mut lines = Vec::new();
     let mut head = format!(
         "  {}{}",
@@ -270,20 +308,17 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     for k in &shown {
         let (label, q) = key_meta(k);
         // Plain ASCII drawing: a label with other characters ("W√Tt/(A p)")
-        // falls back to its key.
-        let label = if th.ascii && !label.is_ascii() {
-            k
-        } else {
-            label
-        };
+        // falls back to a plain one.
+        let label = grid_label(k, label, th.ascii);
         let u = unit_label(q, app.system);
         let u = if u.is_empty() {
             String::new()
         } else {
             format!("[{u}]")
         };
-        head.push_str(&cell(label));
-        unit_row.push_str(&cell(&u));
+        let w = col_width(k, app.system);
+        head.push_str(&cell_w(&label, w));
+        unit_row.push_str(&cell_w(&u, w));
         if unc.is_some() && *k == sel_key {
             head.push_str(&cell(&format!("{pm}{label}")));
             unit_row.push_str(&cell(&format!("{u} 95%")));
@@ -336,7 +371,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             } else if sel {
                 style = style.add_modifier(Modifier::UNDERLINED);
             }
-            spans.push(Span::styled(cell(&text), style));
+            spans.push(Span::styled(cell_w(&text, col_width(k, app.system)), style));
             if let Some(u) = unc.as_ref().filter(|_| *k == sel_key) {
                 let t = u
                     .get(&format!("station.{}.{k}", s.name))
@@ -362,10 +397,18 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     } else {
         String::new()
     };
+    // What is shown, counted as the user sees it: value columns of the
+    // set, plus the uncertainty column when there is one.
     let title = format!(
-        " stations ({} of {} columns{}{rows_note}) ",
-        shown.len(),
+        " stations (columns {}-{} of {}{}{}{rows_note}) ",
+        first + 1,
+        first + shown.len(),
         keys.len(),
+        if unc.is_some() {
+            format!(", {pm}95% of {}", key_meta(sel_key).0)
+        } else {
+            String::new()
+        },
         if keys.len() > shown.len() {
             ", Left/Right scroll"
         } else {
