@@ -397,6 +397,14 @@ pub fn pressure_altitude(pressure_pa: f64) -> Result<f64, AtmosphereError> {
 }
 
 /// Temperature ratio to the sea-level standard: `tt / 288.15`.
+/// Dynamic viscosity of air by Sutherland's law with the U.S. Standard
+/// Atmosphere 1976 constants (beta 1.458e-6 kg/(m s K^0.5), S 110.4 K),
+/// Pa s: 1.7894e-5 at 288.15 K.
+pub fn air_viscosity(t_k: f64) -> f64 {
+    1.458e-6 * t_k.powf(1.5) / (t_k + 110.4)
+}
+
+/// Temperature ratio to the standard sea-level value.
 pub fn theta(tt_k: f64) -> f64 {
     tt_k / SEA_LEVEL_TEMPERATURE_K
 }

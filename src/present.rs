@@ -131,12 +131,146 @@ pub fn figure_meta(key: &str) -> (&'static str, Quantity) {
         .map_or(("?", Quantity::Ratio), |(_, l, q)| (*l, *q))
 }
 
+/// One line of a summary: label, SI value, quantity, and the path that
+/// reads it (a summary figure, or a component's figure on a rig sheet).
+#[derive(Debug, Clone, PartialEq)]
+pub struct SummaryLine {
+    /// Label.
+    pub label: String,
+    /// SI value.
+    pub value: f64,
+    /// Quantity.
+    pub quantity: Quantity,
+    /// Path of the value (`summary.thrust_net`, `process.compressor.pressure_ratio`).
+    pub path: String,
+}
+
+/// The figures a component contributes to a rig sheet's summary.
+fn rig_figures(kind: &crate::book::Kind) -> &'static [&'static str] {
+    use crate::book::Kind;
+    match kind {
+        Kind::Compressor(_) => &[
+            "pressure_ratio",
+            "eta_isentropic",
+            "eta_polytropic",
+            "wc_in",
+            "nc",
+            "power",
+        ],
+        Kind::Turbine(_) => &[
+            "pressure_ratio",
+            "eta_isentropic",
+            "eta_polytropic",
+            "wc_in",
+            "power",
+        ],
+        Kind::Combustor(_) => &[
+            "efficiency",
+            "equivalence_ratio",
+            "far_added",
+            "loss",
+            "exit_tt",
+        ],
+        Kind::Heating(_) => &["heat", "mach_out"],
+        _ => &[],
+    }
+}
+
+/// The summary as the sheet calls for it: propulsion figures for an
+/// engine, test-section figures for a tunnel, each component's figures for
+/// a rig; air flow (and fuel when burnt) on every sheet.
+pub fn summary_lines(engine: &Engine) -> Vec<SummaryLine> {
+    let s = engine.summary();
+    let mut out: Vec<SummaryLine> = Vec::new();
+    if s.sheet == crate::engine::SheetKind::Rig && s.air_flow.is_some() {
+        for p in &engine.book().processes {
+            let Some(r) = engine.process(&p.name) else {
+                continue;
+            };
+            for k in rig_figures(&p.kind) {
+                if let Some(v) = r.figure(k) {
+                    let (label, q) = figure_meta(k);
+                    out.push(SummaryLine {
+                        label: format!("{}: {label}", p.name),
+                        value: v,
+                        quantity: q,
+                        path: format!("process.{}.{k}", p.name),
+                    });
+                }
+            }
+        }
+    }
+    for (k, label, v, q) in summary_entries(engine) {
+        out.push(SummaryLine {
+            label: label.to_string(),
+            value: v,
+            quantity: q,
+            path: format!("summary.{k}"),
+        });
+    }
+    out
+}
+
 /// Summary entries that are defined: key, label, SI value, quantity.
 pub fn summary_entries(engine: &Engine) -> Vec<(&'static str, &'static str, f64, Quantity)> {
     SUMMARY_KEYS
         .iter()
         .filter_map(|(k, l, q)| engine.summary().get(k).map(|v| (*k, *l, v, *q)))
         .collect()
+}
+
+/// How the summary was obtained, as text lines (the same layout as a
+/// station's explanation). On a rig sheet the component figures are named
+/// with the station whose explanation derives them.
+pub fn summary_explanation(engine: &Engine, system: UnitSystem) -> Vec<String> {
+    let s = engine.summary();
+    let mut out = vec![format!(
+        "summary of this {} sheet",
+        match s.sheet {
+            crate::engine::SheetKind::Engine => "engine",
+            crate::engine::SheetKind::Tunnel => "tunnel",
+            crate::engine::SheetKind::Rig => "rig",
+        }
+    )];
+    if engine.withheld().is_some() || s.air_flow.is_none() {
+        out.push("  not computed: see the problems".into());
+        return out;
+    }
+    for l in summary_lines(engine) {
+        if let Some(rest) = l.path.strip_prefix("process.")
+            && let Some((name, _)) = rest.rsplit_once('.')
+            && let Some(p) = engine.book().processes.iter().find(|p| p.name == name)
+        {
+            out.push(format!(
+                "  {} = {}",
+                l.label,
+                with_unit(l.value, l.quantity, system)
+            ));
+            out.push(format!(
+                "      the figure of {} \"{}\": see the explanation of station {}",
+                crate::kinds::of(&p.kind).name(),
+                p.name,
+                p.to
+            ));
+        }
+    }
+    for st in engine.explain_summary() {
+        out.push(format!(
+            "  {} = {}",
+            st.what,
+            with_unit(st.value, st.quantity, system)
+        ));
+        out.push(format!("      {}", st.relation));
+        if !st.inputs.is_empty() {
+            let ins: Vec<String> = st
+                .inputs
+                .iter()
+                .map(|(n, v, q)| format!("{n} = {}", with_unit(*v, *q, system)))
+                .collect();
+            out.push(format!("      with {}", ins.join(", ")));
+        }
+    }
+    out
 }
 
 /// The explanation as text lines.

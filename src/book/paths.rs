@@ -195,7 +195,7 @@ pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Summary keys: key, label, quantity.
-pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
+pub const SUMMARY_KEYS: [(&str, &str, Quantity); 17] = [
     ("thrust_gross", "gross thrust", Quantity::Force),
     ("ram_drag", "ram drag", Quantity::Force),
     ("thrust_net", "net thrust", Quantity::Force),
@@ -212,10 +212,19 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 12] = [
     ("air_flow", "air flow", Quantity::MassFlow),
     ("thrust_corrected", "corrected net thrust", Quantity::Force),
     ("fuel_corrected", "corrected fuel flow", Quantity::FuelFlow),
+    ("test_mach", "test-section Mach", Quantity::Mach),
+    ("test_q", "test-section q", Quantity::PressureDifference),
+    ("test_re", "test-section Re per length", Quantity::PerLength),
+    ("start_pt_ratio", "starting shock pt ratio", Quantity::Ratio),
+    (
+        "start_throat_ratio",
+        "min diffuser/nozzle throat",
+        Quantity::Ratio,
+    ),
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
-pub const FIGURE_KEYS: [(&str, &str, Quantity); 37] = [
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 39] = [
     ("pressure_ratio", "pressure ratio", Quantity::Ratio),
     ("tt_ratio", "Tt ratio", Quantity::Ratio),
     ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
@@ -227,6 +236,8 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 37] = [
     ("nc", "corrected speed", Quantity::RotationalSpeed),
     ("recovery", "pt recovery", Quantity::Ratio),
     ("loss", "pt loss", Quantity::Ratio),
+    ("far_stoich", "stoichiometric FAR", Quantity::Ratio),
+    ("equivalence_ratio", "equivalence ratio", Quantity::Ratio),
     ("friction_4fl_d", "4fL/D", Quantity::Ratio),
     ("fuel_flow", "fuel flow", Quantity::FuelFlow),
     ("far_added", "fuel-air ratio added", Quantity::Ratio),

@@ -1,6 +1,6 @@
 //! `stationwise eval`: every station, component figures and the summary.
 
-use super::common::{self, figure_meta, stations_table, summary_entries, with_unit};
+use super::common::{self, figure_meta, stations_table, with_unit};
 use super::{Failure, OutFormat, Units};
 use crate::engine::{Engine, StationStatus};
 use crate::report::{self, Cell, Column, Printer, Table, cell_json};
@@ -180,12 +180,23 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
             )?;
         }
     }
-    let summary = summary_entries(engine);
+    let summary = crate::present::summary_lines(engine);
     if !summary.is_empty() {
         writeln!(out)?;
         writeln!(out, "summary")?;
-        for (_, label, v, q) in summary {
-            writeln!(out, "  {label:<24} {}", with_unit(v, q, system))?;
+        let w = summary
+            .iter()
+            .map(|l| l.label.chars().count())
+            .max()
+            .unwrap_or(0)
+            .clamp(24, 44);
+        for l in summary {
+            writeln!(
+                out,
+                "  {:<w$} {}",
+                l.label,
+                with_unit(l.value, l.quantity, system)
+            )?;
         }
     }
     let problems = engine.problems();

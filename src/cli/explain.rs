@@ -9,7 +9,7 @@ use std::path::PathBuf;
 pub(super) struct Args {
     /// The workbook file.
     file: PathBuf,
-    /// The station name.
+    /// The station name, or `summary` for the summary figures.
     station: String,
     /// Display units.
     #[arg(long, value_enum, default_value_t = Units::Si)]
@@ -18,10 +18,16 @@ pub(super) struct Args {
 
 pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let (_, engine) = common::open(&a.file)?;
+    if a.station == "summary" && engine.station_index("summary").is_none() {
+        for l in crate::present::summary_explanation(&engine, a.units.into()) {
+            println!("{l}");
+        }
+        return Ok(if engine.problems().is_empty() { 0 } else { 2 });
+    }
     if engine.station_index(&a.station).is_none() {
         let names: Vec<&str> = engine.stations().iter().map(|s| s.name.as_str()).collect();
         return Err(Failure::bad(format!(
-            "no station named \"{}\" in {}; its stations are {}",
+            "no station named \"{}\" in {}; its stations are {} (or `summary`)",
             a.station,
             a.file.display(),
             names.join(", ")

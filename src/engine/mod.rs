@@ -126,9 +126,40 @@ pub struct GoalOutcome {
     pub problem: Option<String>,
 }
 
+/// What a workbook is, for its summary: an engine (a free-stream entry and
+/// a nozzle) gets propulsion figures, a tunnel (a supersonic station that is
+/// not a nozzle exit) its test-section figures, any other sheet is a rig
+/// whose summary is its components' figures.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum SheetKind {
+    /// A free-stream entry and a nozzle.
+    Engine,
+    /// A supersonic station that no nozzle discharges.
+    Tunnel,
+    /// Anything else (component rigs).
+    #[default]
+    Rig,
+}
+
 /// Summary figures (None where not applicable or not computed).
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct Summary {
+    /// What the sheet is (which figures it gets).
+    pub sheet: SheetKind,
+    /// The tunnel's test section (station index): its fastest supersonic
+    /// station that is not a nozzle exit.
+    pub test_station: Option<usize>,
+    /// Test-section Mach number.
+    pub test_mach: Option<f64>,
+    /// Test-section dynamic pressure rho V^2 / 2, Pa.
+    pub test_q: Option<f64>,
+    /// Test-section unit Reynolds number rho V / mu, 1/m (Sutherland air).
+    pub test_re: Option<f64>,
+    /// Total-pressure ratio of a normal shock at the test-section Mach number.
+    pub start_pt_ratio: Option<f64>,
+    /// Smallest diffuser throat over nozzle throat that swallows the
+    /// starting shock: the inverse of that total-pressure ratio.
+    pub start_throat_ratio: Option<f64>,
     /// Gross thrust, N.
     pub thrust_gross: Option<f64>,
     /// Ram drag, N.
@@ -172,6 +203,11 @@ impl Summary {
             "air_flow" => self.air_flow,
             "thrust_corrected" => self.thrust_corrected,
             "fuel_corrected" => self.fuel_corrected,
+            "test_mach" => self.test_mach,
+            "test_q" => self.test_q,
+            "test_re" => self.test_re,
+            "start_pt_ratio" => self.start_pt_ratio,
+            "start_throat_ratio" => self.start_throat_ratio,
             _ => None,
         }
     }
@@ -927,6 +963,30 @@ impl Engine {
             .filter_map(|sh| sh.offtake.as_ref().map(|g| g.si()))
             .sum();
         s.air_flow = Some(air);
+        let freestream = self.book.processes.iter().any(|p| {
+            matches!(
+                p.kind,
+                crate::book::Kind::Entry(crate::book::Entry::Freestream { .. })
+            )
+        });
+        s.sheet = if freestream && nozzles > 0 {
+            SheetKind::Engine
+        } else {
+            self.tunnel_figures(&mut s);
+            if s.test_station.is_some() {
+                SheetKind::Tunnel
+            } else {
+                SheetKind::Rig
+            }
+        };
+        if s.sheet != SheetKind::Engine {
+            // A rig or tunnel: fuel only when some is burnt, no propulsion
+            // figure (a plenum-fed nozzle's thrust is its own figure).
+            if fuel > 0.0 {
+                s.fuel = Some(fuel);
+            }
+            return s;
+        }
         s.fuel = Some(fuel);
         // Corrections use the totals of the first entry (the inlet).
         let inlet = self.graph.first_entry.and_then(|i| match &self.nodes[i] {
@@ -969,6 +1029,262 @@ impl Engine {
             }
         }
         s
+    }
+
+    /// How each summary figure was obtained: one step per defined figure,
+    /// with the relation and the values it used (empty while anything is
+    /// not computed). A rig sheet's component figures are explained with
+    /// their process (`explain` of its exit station).
+    pub fn explain_summary(&self) -> Vec<Step> {
+        use crate::units::Quantity as Q;
+        let s = &self.summary;
+        let mut out = Vec::new();
+        let mut push =
+            |what: &str, v: Option<f64>, q: Q, rel: String, inputs: Vec<(String, f64, Q)>| {
+                if let Some(v) = v {
+                    out.push(Step {
+                        what: what.to_string(),
+                        value: v,
+                        quantity: q,
+                        relation: rel,
+                        inputs,
+                    });
+                }
+            };
+        let named = |f: &dyn Fn(&ProcessResult) -> f64, q: Q| -> Vec<(String, f64, Q)> {
+            self.book
+                .processes
+                .iter()
+                .enumerate()
+                .filter_map(|(i, p)| match &self.nodes[i] {
+                    Some(NodeOut::Done(r)) if f(r) != 0.0 => Some((p.name.clone(), f(r), q)),
+                    _ => None,
+                })
+                .collect()
+        };
+        push(
+            "air flow",
+            s.air_flow,
+            Q::MassFlow,
+            "sum of the air entering at every entry".into(),
+            named(&|r| r.air_in, Q::MassFlow),
+        );
+        push(
+            "fuel flow",
+            s.fuel,
+            Q::FuelFlow,
+            "sum of the fuel burnt in every combustor".into(),
+            named(&|r| r.fuel, Q::FuelFlow),
+        );
+        let v0 = self.ambient.as_ref().map_or(0.0, |a| a.flow.v);
+        if s.sheet == SheetKind::Engine {
+            push(
+                "gross thrust",
+                s.thrust_gross,
+                Q::Force,
+                "sum of the nozzles' gross thrust (momentum plus pressure thrust at each exit)"
+                    .into(),
+                named(&|r| r.thrust, Q::Force),
+            );
+            push(
+                "ram drag",
+                s.ram_drag,
+                Q::Force,
+                "D_ram = W0 V0 at every free-stream entry".into(),
+                vec![("V0".into(), v0, Q::Velocity)],
+            );
+            let (fg, dr) = (s.thrust_gross.unwrap_or(0.0), s.ram_drag.unwrap_or(0.0));
+            let net = s.thrust_net.unwrap_or(0.0);
+            push(
+                "net thrust",
+                s.thrust_net,
+                Q::Force,
+                "F_net = F_gross - D_ram".into(),
+                vec![
+                    ("F_gross".into(), fg, Q::Force),
+                    ("D_ram".into(), dr, Q::Force),
+                ],
+            );
+            let wf = s.fuel.unwrap_or(0.0);
+            push(
+                "TSFC",
+                s.tsfc,
+                Q::ThrustSpecificFuelConsumption,
+                "TSFC = Wf / F_net".into(),
+                vec![
+                    ("Wf".into(), wf, Q::FuelFlow),
+                    ("F_net".into(), net, Q::Force),
+                ],
+            );
+            push(
+                "specific thrust",
+                s.specific_thrust,
+                Q::SpecificThrust,
+                "F_net / W_air".into(),
+                vec![
+                    ("F_net".into(), net, Q::Force),
+                    ("W_air".into(), s.air_flow.unwrap_or(0.0), Q::MassFlow),
+                ],
+            );
+            let heat: f64 = named(&|r| r.heat_release, Q::Power)
+                .iter()
+                .map(|x| x.1)
+                .sum();
+            push(
+                "thermal efficiency",
+                s.eta_thermal,
+                Q::Ratio,
+                "(kinetic power out - kinetic power in + shaft offtake) / (Wf LHV)".into(),
+                vec![("Wf LHV".into(), heat, Q::Power)],
+            );
+            push(
+                "propulsive efficiency",
+                s.eta_propulsive,
+                Q::Ratio,
+                "F_net V0 / (kinetic power out - kinetic power in + shaft offtake)".into(),
+                vec![
+                    ("F_net".into(), net, Q::Force),
+                    ("V0".into(), v0, Q::Velocity),
+                ],
+            );
+            push(
+                "overall efficiency",
+                s.eta_overall,
+                Q::Ratio,
+                "F_net V0 / (Wf LHV)".into(),
+                vec![
+                    ("F_net".into(), net, Q::Force),
+                    ("V0".into(), v0, Q::Velocity),
+                    ("Wf LHV".into(), heat, Q::Power),
+                ],
+            );
+            let (t_ref, p_ref) = self.reference();
+            let inlet = self.graph.first_entry.and_then(|i| match &self.nodes[i] {
+                Some(NodeOut::Done(r)) => {
+                    Some((self.book.processes[i].to.clone(), r.out.tt, r.out.pt))
+                }
+                _ => None,
+            });
+            if let Some((st, tt, pt)) = inlet {
+                push(
+                    "corrected net thrust",
+                    s.thrust_corrected,
+                    Q::Force,
+                    format!(
+                        "F_net / delta, delta = pt / p_ref with pt of station {st} (the first entry's exit)"
+                    ),
+                    vec![
+                        ("F_net".into(), net, Q::Force),
+                        (format!("pt{st}"), pt, Q::Pressure),
+                        ("p_ref".into(), p_ref, Q::Pressure),
+                    ],
+                );
+                push(
+                    "corrected fuel flow",
+                    s.fuel_corrected,
+                    Q::FuelFlow,
+                    format!(
+                        "Wf / (delta sqrt(theta)), theta = Tt / T_ref and delta = pt / p_ref of station {st}"
+                    ),
+                    vec![
+                        ("Wf".into(), wf, Q::FuelFlow),
+                        (format!("Tt{st}"), tt, Q::Temperature),
+                        (format!("pt{st}"), pt, Q::Pressure),
+                        ("T_ref".into(), t_ref, Q::Temperature),
+                        ("p_ref".into(), p_ref, Q::Pressure),
+                    ],
+                );
+            }
+        }
+        if let Some(i) = s.test_station
+            && let Ok(v) = self.station_value(i)
+            && let Some(f) = v.flow
+        {
+            let st = &self.book.stations[i].name;
+            push(
+                "test-section Mach",
+                s.test_mach,
+                Q::Mach,
+                format!(
+                    "the Mach number of station {st}, the fastest supersonic station no nozzle discharges"
+                ),
+                vec![],
+            );
+            push(
+                "test-section q",
+                s.test_q,
+                Q::PressureDifference,
+                "q = rho V^2 / 2".into(),
+                vec![
+                    ("rho".into(), f.rho, Q::Density),
+                    ("V".into(), f.v, Q::Velocity),
+                ],
+            );
+            push(
+                "test-section Re per length",
+                s.test_re,
+                Q::PerLength,
+                "Re/L = rho V / mu, mu = 1.458e-6 T^1.5 / (T + 110.4) (Sutherland, U.S. Standard Atmosphere 1976 constants)".into(),
+                vec![
+                    ("rho".into(), f.rho, Q::Density),
+                    ("V".into(), f.v, Q::Velocity),
+                    ("T".into(), f.t, Q::Temperature),
+                ],
+            );
+            push(
+                "starting shock pt ratio",
+                s.start_pt_ratio,
+                Q::Ratio,
+                "pt2/pt1 of a normal shock at the test-section Mach number (the shock a starting tunnel must pass through the test section)".into(),
+                vec![("M".into(), f.mach, Q::Mach)],
+            );
+            push(
+                "min diffuser/nozzle throat",
+                s.start_throat_ratio,
+                Q::Ratio,
+                "A*_diffuser / A*_nozzle >= pt1/pt2: the diffuser throat must pass the flow at the total pressure behind the starting shock".into(),
+                vec![("pt2/pt1".into(), s.start_pt_ratio.unwrap_or(f64::NAN), Q::Ratio)],
+            );
+        }
+        out
+    }
+
+    /// The test section of a tunnel sheet and its figures: the fastest
+    /// supersonic station whose producer does not discharge to ambient.
+    fn tunnel_figures(&self, s: &mut Summary) {
+        let mut best: Option<(usize, FlowState)> = None;
+        for (i, _) in self.book.stations.iter().enumerate() {
+            let p = self.graph.producer[i];
+            if self.graph.discharges[p] {
+                continue;
+            }
+            if let Ok(v) = self.station_value(i)
+                && let Some(f) = v.flow
+                && f.mach > 1.0
+                && best.is_none_or(|(_, b)| f.mach > b.mach)
+            {
+                best = Some((i, f));
+            }
+        }
+        let Some((i, f)) = best else {
+            return;
+        };
+        s.test_station = Some(i);
+        s.test_mach = Some(f.mach);
+        s.test_q = Some(0.5 * f.rho * f.v * f.v);
+        s.test_re = Some(f.rho * f.v / atmosphere::air_viscosity(f.t));
+        let gas = self
+            .model
+            .as_ref()
+            .ok()
+            .and_then(|m| self.station_value(i).ok().and_then(|v| m.gas(&v.comp).ok()));
+        if let Some(g) = gas
+            && let Ok(down) = crate::flow::shock::normal(&g, &f)
+            && down.pt > 0.0
+        {
+            s.start_pt_ratio = Some(down.pt / f.pt);
+            s.start_throat_ratio = Some(f.pt / down.pt);
+        }
     }
 
     fn solve_goals(&mut self) {
@@ -1170,7 +1486,9 @@ impl Engine {
         if let Some(why) = &self.withheld {
             return StationStatus::Withheld(why);
         }
-        let p = self.graph.producer[s];
+        let Some(&p) = self.graph.producer.get(s) else {
+            return StationStatus::Failed("(no such station)");
+        };
         match self.nodes[p].as_ref() {
             Some(NodeOut::Done(_)) => match self.station_value(s) {
                 Ok(v) => StationStatus::Ok(v),

@@ -251,6 +251,9 @@ fn combustor(
     let mut r = ProcessResult::new(out);
     r.fuel = wf;
     r.heat_release = wf * lhv;
+    // Equivalence ratio of the exit stream: its fuel-air ratio over the
+    // stoichiometric one of the fuel.
+    let stoich = crate::gas::stoichiometric_far(fuel);
     r.figures = Figures::of(&[
         ("fuel_flow", wf),
         ("far_added", burn.far_added),
@@ -258,6 +261,8 @@ fn combustor(
         ("efficiency", eta),
         ("tt_ratio", burn.tt_out / i.tt),
         ("loss", loss),
+        ("far_stoich", stoich),
+        ("equivalence_ratio", burn.composition.far / stoich),
     ]);
     Ok(r)
 }

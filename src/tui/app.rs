@@ -325,6 +325,8 @@ pub struct App {
     /// process name and mode label, with its exit station's measured Tt
     /// and pt), so switching back restores them.
     pub mode_memory: std::collections::HashMap<(String, String), ModeMemory>,
+    /// The walk shows the summary's explanation (below the last station).
+    pub walk_summary: bool,
 }
 
 /// A mode left behind: the process's kind and its exit's measured Tt, pt.
@@ -447,6 +449,7 @@ impl App {
             derived: Derived::default(),
             saved_text: None,
             mode_memory: Default::default(),
+            walk_summary: false,
         };
         if !bad.is_empty() {
             app.error(format!("settings: keys not understood: {}", bad.join("; ")));
@@ -733,6 +736,18 @@ impl App {
             return;
         }
         let n = self.n_stations();
+        // The walk lists the summary after the last station: a mark of its
+        // own, so the selected row always names a station.
+        if self.view == View::Walk {
+            if d > 0 && self.row + 1 >= n {
+                self.walk_summary = true;
+                return;
+            }
+            if d < 0 && self.walk_summary {
+                self.walk_summary = false;
+                return;
+            }
+        }
         if n > 0 {
             self.row = (self.row as isize + d).clamp(0, n as isize - 1) as usize;
         }

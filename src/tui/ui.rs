@@ -13,7 +13,7 @@ use super::keymap::COMMANDS;
 use super::plot::{self, Series};
 use crate::book::paths::STATION_KEYS;
 use crate::engine::StationStatus;
-use crate::present::{self, figure_meta, summary_entries, unit_label, with_unit};
+use crate::present::{self, figure_meta, unit_label, with_unit};
 use crate::units::{self, Quantity};
 use ratatui::Frame;
 use ratatui::layout::{Constraint, Layout, Rect};
@@ -650,9 +650,18 @@ fn window(
             continue;
         }
         let style = l.spans[0].style.patch(l.style);
-        for (j, part) in hang(&text, width, 2).into_iter().enumerate() {
+        // Keep the line's own indent; continuations two further in.
+        let lead = text
+            .chars()
+            .take_while(|c| *c == ' ')
+            .count()
+            .min(width / 2);
+        for (j, part) in hang(text.trim_start(), width, lead + 2)
+            .into_iter()
+            .enumerate()
+        {
             let part = if j == 0 {
-                part.trim_start().to_string()
+                format!("{}{}", " ".repeat(lead), part.trim_start())
             } else {
                 part
             };
@@ -709,36 +718,39 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
             None => lines.push(Line::from(format!("{path}: no uncertainty"))),
         }
     }
-    // Values whole; the labels give way on a narrow terminal.
+    // Values whole; a label too long for its line goes on a line of its
+    // own above the value, never cut.
     let inner = area.width.saturating_sub(2) as usize;
-    let entries: Vec<(String, String)> = summary_entries(e)
+    let entries: Vec<(String, String)> = present::summary_lines(e)
         .into_iter()
-        .map(|(_, label, v, q)| (label.to_string(), with_unit(v, q, app.system)))
+        .map(|l| (l.label, with_unit(l.value, l.quantity, app.system)))
         .collect();
-    let widest = entries
-        .iter()
-        .map(|(_, v)| v.chars().count())
-        .max()
-        .unwrap_or(0);
-    let longest = entries
-        .iter()
-        .map(|(l, _)| l.chars().count())
-        .max()
-        .unwrap_or(0);
-    let lw = longest.min(inner.saturating_sub(widest + 1));
-    let columns = lw >= 15.min(longest);
+    // A rig's component figures ("combustor: pt loss") under one heading
+    // per component.
+    let mut group: Option<String> = None;
     for (label, value) in entries {
-        if columns {
-            lines.push(Line::from(format!("{} {value}", fit_left(&label, lw))));
+        let label = match label.split_once(": ") {
+            Some((g, rest)) => {
+                if group.as_deref() != Some(g) {
+                    lines.push(Line::from(Span::styled(
+                        g.to_string(),
+                        Style::default().add_modifier(Modifier::BOLD),
+                    )));
+                    group = Some(g.to_string());
+                }
+                format!(" {rest}")
+            }
+            None => {
+                group = None;
+                label
+            }
+        };
+        let (l, v) = (label.chars().count(), value.chars().count());
+        if l + 1 + v <= inner {
+            lines.push(Line::from(format!("{label}{value:>w$}", w = inner - l)));
         } else {
-            // Too narrow for two columns: values flush right, each label
-            // as long as its own line allows.
-            let lw = inner.saturating_sub(value.chars().count() + 1).max(4);
-            lines.push(Line::from(format!(
-                "{} {value:>w$}",
-                fit_left(&label, lw),
-                w = inner.saturating_sub(lw + 1)
-            )));
+            lines.push(Line::from(label));
+            lines.push(Line::from(format!("{value:>inner$}")));
         }
     }
     for s in &e.book().shafts {
@@ -783,31 +795,50 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             StationStatus::Blocked(_) => ".",
             StationStatus::Withheld(_) => "x",
         };
-        let text = format!("{}{mark}{}", if i == app.row { ">" } else { " " }, s.name);
-        let style = if i == app.row {
-            th.sel()
-        } else {
-            Style::default()
-        };
+        let here = i == app.row && !app.walk_summary;
+        let text = format!("{}{mark}{}", if here { ">" } else { " " }, s.name);
+        let style = if here { th.sel() } else { Style::default() };
         lines.push(Line::from(Span::styled(text, style)));
     }
-    f.render_widget(Paragraph::new(lines).block(th.block(" flow path ")), la);
-    let name = e
-        .stations()
-        .get(app.row)
-        .map_or(String::new(), |s| s.name.clone());
-    let body: Vec<Line> = match app.explanation(&name) {
-        Ok(ls) => ls.into_iter().map(Line::from).collect(),
-        Err(m) => vec![Line::from(Span::styled(
-            format!("station {name}: {m}"),
-            th.bad(),
-        ))],
-    };
+    // After the stations, the summary: how each of its figures was obtained.
+    let n = e.stations().len();
+    let on_summary = app.walk_summary;
+    lines.push(Line::from(Span::styled(
+        format!("{} summary", if on_summary { ">" } else { " " }),
+        if on_summary { th.sel() } else { th.dim() },
+    )));
+    let (lines, more) = window(lines, la, 0, Some(if on_summary { n } else { app.row }));
     f.render_widget(
-        Paragraph::new(body)
-            .block(th.block(" how each value was obtained (Up/Down station, PgUp/PgDn scroll) "))
-            .wrap(Wrap { trim: false })
-            .scroll((app.scroll, 0)),
+        Paragraph::new(lines).block(
+            th.block(" flow path ")
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
+        la,
+    );
+    let body: Vec<Line<'static>> = if on_summary {
+        present::summary_explanation(e, app.system)
+            .into_iter()
+            .map(Line::from)
+            .collect()
+    } else {
+        let name = e
+            .stations()
+            .get(app.row)
+            .map_or(String::new(), |s| s.name.clone());
+        match app.explanation(&name) {
+            Ok(ls) => ls.into_iter().map(Line::from).collect(),
+            Err(m) => vec![Line::from(Span::styled(
+                format!("station {name}: {m}"),
+                th.bad(),
+            ))],
+        }
+    };
+    let (body, more) = window(body, ra, app.scroll as usize, None);
+    f.render_widget(
+        Paragraph::new(body).block(
+            th.block(" how each value was obtained (Up/Down station, PgUp/PgDn scroll) ")
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
         ra,
     );
 }
