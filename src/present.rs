@@ -255,22 +255,27 @@ pub fn summary_explanation(engine: &Engine, system: UnitSystem) -> Vec<String> {
         }
     }
     for st in engine.explain_summary() {
-        out.push(format!(
-            "  {} = {}",
-            st.what,
-            with_unit(st.value, st.quantity, system)
-        ));
-        out.push(format!("      {}", st.relation));
-        if !st.inputs.is_empty() {
-            let ins: Vec<String> = st
-                .inputs
-                .iter()
-                .map(|(n, v, q)| format!("{n} = {}", with_unit(*v, *q, system)))
-                .collect();
-            out.push(format!("      with {}", ins.join(", ")));
-        }
+        step_lines(&st, system, &mut out);
     }
     out
+}
+
+/// One explanation step as text: the value, its relation, its inputs.
+fn step_lines(s: &crate::engine::explain::Step, system: UnitSystem, out: &mut Vec<String>) {
+    out.push(format!(
+        "  {} = {}",
+        s.what,
+        with_unit(s.value, s.quantity, system)
+    ));
+    out.push(format!("      {}", s.relation));
+    if !s.inputs.is_empty() {
+        let ins: Vec<String> = s
+            .inputs
+            .iter()
+            .map(|(n, v, q)| format!("{n} = {}", with_unit(*v, *q, system)))
+            .collect();
+        out.push(format!("      with {}", ins.join(", ")));
+    }
 }
 
 /// The explanation as text lines.
@@ -293,20 +298,7 @@ pub fn explanation(
             .map_or(String::new(), |f| format!(" (upstream station {f})"))
     )];
     for s in steps {
-        out.push(format!(
-            "  {} = {}",
-            s.what,
-            with_unit(s.value, s.quantity, system)
-        ));
-        out.push(format!("      {}", s.relation));
-        if !s.inputs.is_empty() {
-            let ins: Vec<String> = s
-                .inputs
-                .iter()
-                .map(|(n, v, q)| format!("{n} = {}", with_unit(*v, *q, system)))
-                .collect();
-            out.push(format!("      with {}", ins.join(", ")));
-        }
+        step_lines(&s, system, &mut out);
     }
     if let Some(v) = engine.station(station) {
         out.push("  values:".into());

@@ -117,8 +117,9 @@ fn a_scan_that_cannot_be_applied_shows_no_other_scans_numbers() {
     // The channel-fed givens are back at the file's values, and say so.
     assert_eq!(app.origin("process.inlet.tt"), {
         let label = stationwise::tui::app::scan_label(app.scans.as_ref().unwrap(), 1);
-        Origin::ScanWithheld(label)
+        Origin::Withheld(format!("{label} not applied"))
     });
+    assert!(matches!(app.origin("station.1.area"), Origin::Withheld(_)));
     let g = app.book().unwrap().given("process.inlet.tt").unwrap().1;
     assert!(!g.is_varied());
 

@@ -108,6 +108,9 @@ struct Graph {
     deps: Vec<Vec<usize>>,
     shaft_of: Vec<Option<usize>>,
     uses_ambient: Vec<bool>,
+    /// Some entry takes its flow from the free stream (with a nozzle, an
+    /// engine sheet).
+    freestream: bool,
     /// The process discharges to the ambient (a nozzle).
     discharges: Vec<bool>,
     /// The first entry in evaluation order (the inlet of corrections).
@@ -361,6 +364,10 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         let whose = format!("process \"{}\"", p.name);
         let kind = crate::kinds::of(&p.kind);
         let is_entry = kind.is_entry();
+        g.freestream |= matches!(
+            p.kind,
+            crate::book::Kind::Entry(crate::book::Entry::Freestream { .. })
+        );
         match (&p.from, is_entry) {
             (Some(_), true) => errors.push(BookError::Rule(format!(
                 "{whose} is an entry and takes its flow from the ambient block or its own givens: remove `from`"
@@ -963,13 +970,7 @@ impl Engine {
             .filter_map(|sh| sh.offtake.as_ref().map(|g| g.si()))
             .sum();
         s.air_flow = Some(air);
-        let freestream = self.book.processes.iter().any(|p| {
-            matches!(
-                p.kind,
-                crate::book::Kind::Entry(crate::book::Entry::Freestream { .. })
-            )
-        });
-        s.sheet = if freestream && nozzles > 0 {
+        s.sheet = if self.graph.freestream && nozzles > 0 {
             SheetKind::Engine
         } else {
             self.tunnel_figures(&mut s);

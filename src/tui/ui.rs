@@ -426,62 +426,33 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     summary(f, app, th, sa, unc.as_ref().zip(sel_path));
 }
 
-fn given_line(app: &App, path: &str) -> Option<(String, String, bool)> {
+fn given_line(app: &App, path: &str) -> Option<(String, String)> {
     let b = app.book()?;
     let (q, g) = b.given(path)?;
-    let (text, si) = (g.text().to_string(), g.si());
+    let text = g.text();
     let field = path.rsplit('.').next().unwrap_or(path).to_string();
-    let shown = with_unit(si, q, app.system);
+    let shown = with_unit(g.si(), q, app.system);
     // A scan, goal or sweep sets the value in use apart from the file's
     // text: say which, and for a scan its raw readings.
-    match app.origin(path) {
-        Origin::Typed => {}
+    let value = match app.origin(path) {
+        Origin::Typed
+            if text.trim() == shown.trim() || matches!(q, Quantity::Ratio | Quantity::Mach) =>
+        {
+            text.to_string()
+        }
+        Origin::Typed => format!("{text}  ({shown})"),
         Origin::Scan(label, cells, unit) => {
             let raw: Vec<String> = cells.iter().map(|(c, v)| format!("{c} {v}")).collect();
-            return Some((
-                field,
-                format!(
-                    "{shown}  ({label}: {} {unit}; file: {text})",
-                    raw.join(", ")
-                ),
-                true,
-            ));
+            format!(
+                "{shown}  ({label}: {} {unit}; file: {text})",
+                raw.join(", ")
+            )
         }
-        Origin::ScanWithheld(label) => {
-            return Some((
-                field,
-                format!("xx  ({label} not applied; file: {text})"),
-                true,
-            ));
-        }
-        Origin::Goal(k) if app.engine.as_ref().is_some_and(|e| e.withheld().is_some()) => {
-            return Some((
-                field,
-                format!("xx  (goal {k} not solved: values withheld; file: {text})"),
-                true,
-            ));
-        }
-        Origin::Goal(k) => {
-            return Some((
-                field,
-                format!("{shown}  (set by goal {k}; file: {text})"),
-                true,
-            ));
-        }
-        Origin::Varied => {
-            return Some((field, format!("{shown}  (varied; file: {text})"), true));
-        }
-    }
-    let same = text.trim() == shown.trim() || matches!(q, Quantity::Ratio | Quantity::Mach);
-    Some((
-        field,
-        if same {
-            text
-        } else {
-            format!("{text}  ({shown})")
-        },
-        true,
-    ))
+        Origin::Withheld(why) => format!("xx  ({why}; file: {text})"),
+        Origin::Goal(k) => format!("{shown}  (set by goal {k}; file: {text})"),
+        Origin::Varied => format!("{shown}  (varied; file: {text})"),
+    };
+    Some((field, value))
 }
 
 type UncMap = std::collections::HashMap<String, crate::reduce::Uncertainty>;
@@ -512,7 +483,7 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
         let marker = if sel { ">" } else { " " };
         let (text, style) = match r {
             PanelRow::Given(path) => match given_line(app, path) {
-                Some((field, val, _)) => {
+                Some((field, val)) => {
                     let owner = if path.starts_with("station.") {
                         "station".to_string()
                     } else if let Some(rest) = path.strip_prefix("shaft.") {
@@ -1078,8 +1049,9 @@ pub fn hang(text: &str, width: usize, indent: usize) -> Vec<String> {
     out
 }
 
-/// An input field: a selected text in reverse video (typing replaces it),
-/// otherwise the text with the cursor cell reversed.
+/// An input field as drawn: all of its text highlighted while it is
+/// selected (the next key typed replaces it), else the character under the
+/// cursor highlighted.
 fn field_line(f: &super::field::Field, th: &Theme) -> Line<'static> {
     if f.is_selected() {
         return Line::from(vec![
@@ -1310,7 +1282,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                         if b.keep_results { "yes" } else { "no" }
                     ),
                     (SetupRow::Given(p), _) => match given_line(app, p) {
-                        Some((field, val, _)) => format!("  {field:<15}= {val}"),
+                        Some((field, val)) => format!("  {field:<15}= {val}"),
                         None => continue,
                     },
                     _ => continue,

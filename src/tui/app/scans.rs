@@ -81,8 +81,9 @@ pub enum Origin {
     Typed,
     /// A recorded scan: its label and each feeding column's raw cell.
     Scan(String, Vec<(String, String)>, &'static str),
-    /// Fed by the scan map, but the selected scan is not applied.
-    ScanWithheld(String),
+    /// Not shown, and why (the selected scan is not applied, so neither
+    /// its values nor a goal solved on them are on screen).
+    Withheld(String),
     /// Set by goal number k (1-based).
     Goal(usize),
     /// Set by a program (a sweep point or an uncertainty trial).
@@ -111,11 +112,14 @@ impl App {
                         .collect(),
                     unit,
                 ),
-                _ => Origin::ScanWithheld(scan_label(sb, sb.at)),
+                _ => Origin::Withheld(format!("{} not applied", scan_label(sb, sb.at))),
             };
         }
         let varied = b.given(path).is_some_and(|(_, g)| g.is_varied());
         if let Some(k) = b.goals.iter().position(|g| g.vary == path) {
+            if self.engine.as_ref().is_some_and(|e| e.withheld().is_some()) {
+                return Origin::Withheld(format!("goal {} not solved: values withheld", k + 1));
+            }
             return Origin::Goal(k + 1);
         }
         if varied {
