@@ -772,9 +772,14 @@ fn the_selection_is_reversed_and_marked() {
         b[(x, y)].modifier.contains(Modifier::REVERSED),
         "selected cell"
     );
-    // Other cells of the row are underlined, not reversed; other rows plain.
+    // The row's name is underlined; its other cells are plain; other rows
+    // plain.
+    assert!(
+        b[(col_of(&b, y, "3 "), y)]
+            .modifier
+            .contains(Modifier::UNDERLINED)
+    );
     let x2 = col_of(&b, y, "1003.1");
-    assert!(b[(x2, y)].modifier.contains(Modifier::UNDERLINED));
     assert!(!b[(x2, y)].modifier.contains(Modifier::REVERSED));
     let y2 = row_of(&b, "  2          intake");
     assert!((0..80).all(|x| !b[(x, y2)].modifier.contains(Modifier::REVERSED)));

@@ -13,6 +13,7 @@ pub mod keymap;
 pub mod lifeline;
 pub mod plot;
 pub mod settings;
+pub mod thin;
 pub mod ui;
 
 use app::App;
@@ -100,7 +101,7 @@ pub fn run(file: Option<&Path>, opts: Options) -> Result<(), String> {
         restore();
         return Err(format!("cannot use this terminal: {e}"));
     }
-    let backend = CrosstermBackend::new(io::stdout());
+    let backend = thin::ThinLink::new(CrosstermBackend::new(io::stdout()));
     let mut term = match Terminal::new(backend) {
         Ok(t) => t,
         Err(e) => {
@@ -128,7 +129,7 @@ fn on_cut(app: &App, why: &str) -> String {
     }
 }
 
-type Term = Terminal<CrosstermBackend<io::Stdout>>;
+type Term = Terminal<thin::ThinLink<CrosstermBackend<io::Stdout>>>;
 
 fn event_loop(app: &mut App, line: &mut lifeline::Lifeline, term: &mut Term) -> Result<(), String> {
     use lifeline::Wake;

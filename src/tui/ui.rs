@@ -340,11 +340,24 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         let p = &e.book().processes[e.producer_of(i)];
         let status = e.station_status(i);
         let marker = if sel { "> " } else { "  " };
-        let mut spans = vec![Span::raw(format!(
-            "{marker}{}{}",
-            fit_left(&s.name, NAME_W - 2),
-            fit_left(&format!(" {}", p.name), VIA_W)
-        ))];
+        // The selected row: its marker, its name and process underlined
+        // and the selected cell reversed (values are not underlined: a
+        // cursor move then redraws two names, not two rows of numbers).
+        let mut spans = vec![
+            Span::raw(marker),
+            Span::styled(
+                format!(
+                    "{}{}",
+                    fit_left(&s.name, NAME_W - 2),
+                    fit_left(&format!(" {}", p.name), VIA_W)
+                ),
+                if sel {
+                    Style::default().add_modifier(Modifier::UNDERLINED)
+                } else {
+                    Style::default()
+                },
+            ),
+        ];
         for (ci, k) in shown.iter().enumerate() {
             let (_, q) = key_meta(k);
             let given = app.cell_given(i, k).is_some();
@@ -368,8 +381,6 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             };
             if sel && app.focus == Focus::Grid && first + ci == app.col {
                 style = style.add_modifier(Modifier::REVERSED);
-            } else if sel {
-                style = style.add_modifier(Modifier::UNDERLINED);
             }
             spans.push(Span::styled(cell_w(&text, col_width(k, app.system)), style));
             if let Some(u) = unc.as_ref().filter(|_| *k == sel_key) {
@@ -466,10 +477,7 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
     };
     let p = &e.book().processes[e.producer_of(app.row)];
     let mut lines = vec![Line::from(Span::styled(
-        format!(
-            "{}  [m mode, K kind]",
-            crate::kinds::of(&p.kind).mode_label()
-        ),
+        crate::kinds::of(&p.kind).mode_label().to_string(),
         th.dim(),
     ))];
     // Why the station is not computed, whole (the status line may cut it).
@@ -588,9 +596,12 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
         format!("{title}(Tab: edit) ")
     };
     let (lines, more) = window(lines, area, app.scroll as usize, keep);
+    // The keys that change the process stay in one place in the border
+    // (nothing to redraw when the next station is shown).
     f.render_widget(
         Paragraph::new(lines).block(
             th.block(title)
+                .title_bottom(Line::from(" m mode  K kind ").left_aligned())
                 .title_bottom(Line::from(more).right_aligned()),
         ),
         area,
