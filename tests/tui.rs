@@ -952,6 +952,46 @@ fn snapshot_problem() {
 }
 
 #[test]
+fn snapshot_confirm_quit() {
+    snap_all("confirm", &format!("{TO_PR} Enter ctrl-u 1 1 Enter q"));
+}
+
+#[test]
+fn snapshot_rename() {
+    snap_all("rename", "j j r");
+}
+
+#[test]
+fn snapshot_kind_chooser() {
+    snap_all("kind_chooser", "j j K");
+}
+
+#[test]
+fn snapshot_kind_chooser_searched() {
+    snap_all("kind_chooser_search", "j j K text:sho");
+}
+
+#[test]
+fn snapshot_mode_chooser() {
+    snap_all("mode_chooser", "j j m");
+}
+
+#[test]
+fn snapshot_statics_chooser() {
+    snap_all("statics_chooser", "j j Tab Enter");
+}
+
+#[test]
+fn snapshot_sweep_form() {
+    snap_all("sweep_form", &format!("{TO_PR} 4"));
+}
+
+#[test]
+fn snapshot_walk_summary() {
+    snap_all("walk_summary", "2 j j j j j j j j j");
+}
+
+#[test]
 fn snapshot_us_units() {
     snap_all("grid_us", "j j u");
 }

@@ -158,14 +158,68 @@ fn the_scan_list_jumps_and_filters_by_flag() {
     app.load_scans(&scans).unwrap();
     app.on_key(KeyEvent::new(KeyCode::Char('B'), KeyModifiers::SHIFT));
     let list = screen(&app);
-    assert!(list.contains("scans of scans.csv (5 of 5)"), "{list}");
+    assert!(
+        list.contains("scans of scans.csv (1-5 of 5 listed, 5 in the file)"),
+        "{list}"
+    );
     assert!(list.contains("NOT USABLE"), "{list}");
+    // At 80x24 a long reason is cut in the list and shown whole under it
+    // for the selected scan.
+    app.on_key(key(KeyCode::Down));
+    let narrow = render_text(&app, 80, 24);
+    let flat = narrow
+        .lines()
+        .map(|l| l.trim_matches(|c| c == '│' || c == ' '))
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(
+        flat.contains(r#"not usable: row 2, column T1A: "NaN" is not a number"#),
+        "{narrow}"
+    );
+    app.on_key(key(KeyCode::Up));
     app.on_key(key(KeyCode::Char('f')));
     let flagged = screen(&app);
-    assert!(flagged.contains("(2 of 5, flagged only)"), "{flagged}");
+    assert!(
+        flagged.contains("(1-2 of 2 listed, 5 in the file, flagged only)"),
+        "{flagged}"
+    );
     // The second flagged scan is scan 3: Down, Enter shows it.
     app.on_key(key(KeyCode::Down));
     app.on_key(key(KeyCode::Enter));
     assert!(app.popups.is_empty());
     assert_eq!(app.scans.as_ref().unwrap().shown, Some(2));
+}
+
+/// Screens of the scan browser frozen at 80x24 and 120x40, in colour and
+/// plain ASCII (golden files of our own drawing: the withheld scan 2 and
+/// the scan list).
+#[test]
+fn snapshot_scan_browser() {
+    for (mode, ascii) in [("color", false), ("ascii", true)] {
+        for (what, keys) in [
+            ("scan_withheld", vec![KeyCode::Char(']')]),
+            ("scan_list", vec![KeyCode::Char('B')]),
+            (
+                "scan_list_flagged",
+                vec![KeyCode::Char('B'), KeyCode::Char('f')],
+            ),
+        ] {
+            let (book, scans, _) = rig_with_scans(&format!("snap-{mode}-{what}"));
+            let settings = Settings {
+                ascii,
+                color: !ascii,
+                ..Settings::default()
+            };
+            let mut app = App::new(settings);
+            app.open(&book).unwrap();
+            app.load_scans(&scans).unwrap();
+            for k in keys {
+                app.on_key(key(k));
+            }
+            app.status = None;
+            for (w, h) in [(80u16, 24u16), (120, 40)] {
+                insta::assert_snapshot!(format!("{what}_{mode}_{w}x{h}"), render_text(&app, w, h));
+            }
+        }
+    }
 }

@@ -341,6 +341,10 @@ pub type UncertaintyMap = std::collections::HashMap<String, crate::reduce::Uncer
 /// computed for and computed again only when those change.
 #[derive(Debug, Default)]
 pub struct Derived {
+    /// What the last frame could scroll: the smallest page of the blocks
+    /// that scroll together and the furthest useful offset, so that a page
+    /// key moves by what is shown and never past the end.
+    pub scroll_room: std::cell::Cell<(u16, u16)>,
     uncertainty: std::cell::RefCell<Option<UncertaintyEntry>>,
     walk: std::cell::RefCell<Option<WalkEntry>>,
 }
@@ -607,8 +611,14 @@ impl App {
             }
             Command::Edit if self.view == View::Sweep => self.open_sweep_form(),
             Command::Edit => self.edit_selected(),
-            Command::PageDown => self.scroll = self.scroll.saturating_add(10).min(400),
-            Command::PageUp => self.scroll = self.scroll.saturating_sub(10),
+            Command::PageDown => {
+                let (page, max) = self.derived.scroll_room.get();
+                self.scroll = self.scroll.saturating_add(page.max(1)).min(max);
+            }
+            Command::PageUp => {
+                let (page, max) = self.derived.scroll_room.get();
+                self.scroll = self.scroll.min(max).saturating_sub(page.max(1));
+            }
             Command::ViewGrid => self.view = View::Grid,
             Command::ViewWalk => {
                 self.view = View::Walk;
@@ -733,6 +743,9 @@ impl App {
             if n > 0 {
                 self.panel = (self.panel as isize + d).clamp(0, n as isize - 1) as usize;
             }
+            // The panel follows its selection again (a page key scrolled
+            // away from it).
+            self.scroll = 0;
             return;
         }
         let n = self.n_stations();

@@ -91,6 +91,8 @@ pub fn draw(f: &mut Frame, app: &App) {
         f.render_widget(Paragraph::new(msg).wrap(Wrap { trim: true }), area);
         return;
     }
+    // Nothing scrolls until a block says it does.
+    app.derived.scroll_room.set((u16::MAX, 0));
     let (msg, err) = match (&app.status, station_problem(app)) {
         (Some((m, e)), _) => (m.clone(), *e),
         (None, Some(p)) => (p, true),
@@ -410,22 +412,28 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     };
     // What is shown, counted as the user sees it: value columns of the
     // set, plus the uncertainty column when there is one.
-    let title = format!(
-        " stations (columns {}-{} of {}{}{}{rows_note}) ",
-        first + 1,
-        first + shown.len(),
-        keys.len(),
-        if unc.is_some() {
-            format!(", {pm}95% of {}", key_meta(sel_key).0)
-        } else {
-            String::new()
-        },
-        if keys.len() > shown.len() {
-            ", Left/Right scroll"
-        } else {
-            ""
-        }
-    );
+    let title_with = |hint: &str| {
+        format!(
+            " stations (columns {}-{} of {}{}{hint}{rows_note}) ",
+            first + 1,
+            first + shown.len(),
+            keys.len(),
+            if unc.is_some() {
+                format!(", {pm}95% of {}", key_meta(sel_key).0)
+            } else {
+                String::new()
+            },
+        )
+    };
+    // The scroll hint goes first when the title would not fit whole.
+    let mut title = title_with(if keys.len() > shown.len() {
+        ", Left/Right scroll"
+    } else {
+        ""
+    });
+    if title.chars().count() + 2 > ga.width as usize {
+        title = title_with("");
+    }
     f.render_widget(Paragraph::new(lines).block(th.block(title)), ga);
     let [pa, sa] =
         Layout::horizontal([Constraint::Percentage(62), Constraint::Percentage(38)]).areas(lower);
@@ -584,18 +592,23 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
             )));
         }
     }
-    let title = format!(
-        " into {}: {} \"{}\" ",
-        st.name,
-        crate::kinds::of(&p.kind).name(),
-        p.name
-    );
-    let title = if app.focus == Focus::Panel {
-        format!("{title}(Tab: grid) ")
+    let kind = crate::kinds::of(&p.kind).name();
+    let tab = if app.focus == Focus::Panel {
+        "(Tab: grid) "
     } else {
-        format!("{title}(Tab: edit) ")
+        "(Tab: edit) "
     };
-    let (lines, more) = window(lines, area, app.scroll as usize, keep);
+    // The longest title that fits: the Tab hint, then the kind go first.
+    let title = fit_title(
+        &[
+            format!(" into {}: {kind} \"{}\" {tab}", st.name, p.name),
+            format!(" into {}: {kind} \"{}\" ", st.name, p.name),
+            format!(" into {}: \"{}\" ", st.name, p.name),
+            format!(" into {} ", st.name),
+        ],
+        area.width,
+    );
+    let (lines, more) = window(app, lines, area, Some(app.scroll as usize), keep);
     // The keys that change the process stay in one place in the border
     // (nothing to redraw when the next station is shown).
     f.render_widget(
@@ -608,14 +621,38 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
     );
 }
 
+/// A block that scrolls with the page keys shows `page` lines and can go
+/// `max` lines down: the page keys move by the smallest page and stop at
+/// the furthest end of this frame's blocks.
+fn scrolls(app: &App, page: usize, max: usize) {
+    let (p, m) = app.derived.scroll_room.get();
+    let page = page.min(u16::MAX as usize) as u16;
+    let max = max.min(u16::MAX as usize) as u16;
+    app.derived.scroll_room.set((p.min(page), m.max(max)));
+}
+
+/// The first of `titles` (longest first) that fits a block `width` wide
+/// with a border cell left at each end; the last one otherwise.
+fn fit_title(titles: &[String], width: u16) -> String {
+    titles
+        .iter()
+        .find(|t| t.chars().count() + 4 <= width as usize)
+        .or(titles.last())
+        .cloned()
+        .unwrap_or_default()
+}
+
 /// Lines wrapped to the inside of `area` (a continuation indented by two),
-/// then the part that fits: from `scroll` down, moved so that line `keep`
-/// (before wrapping) is shown. When not all fit, the second value says
-/// which lines are shown and how to scroll, for the block's title.
+/// then the part that fits: from `scroll` down (page keys; `None` for a
+/// list that only follows its selection), moved so that line `keep`
+/// (before wrapping) is shown while nothing is scrolled. When not all fit,
+/// the second value says which lines are shown and how to scroll, for the
+/// block's border.
 fn window(
+    app: &App,
     lines: Vec<Line<'static>>,
     area: Rect,
-    scroll: usize,
+    scroll: Option<usize>,
     keep: Option<usize>,
 ) -> (Vec<Line<'static>>, String) {
     let width = area.width.saturating_sub(2) as usize;
@@ -654,8 +691,18 @@ fn window(
     if n <= height || height == 0 {
         return (out, String::new());
     }
+    // A list that follows its selection (no page scroll) is not counted.
+    let paged = scroll.is_some();
+    let scroll = match scroll {
+        Some(s) => {
+            scrolls(app, height, n - height);
+            s
+        }
+        None => 0,
+    };
     let mut top = scroll.min(n - height);
-    if let Some(k) = keep_at {
+    // The selected line is kept in view until a page key scrolls away.
+    if let Some(k) = keep_at.filter(|_| scroll == 0) {
         if k < top {
             top = k;
         } else if k >= top + height {
@@ -663,16 +710,28 @@ fn window(
         }
     }
     let shown: Vec<Line<'static>> = out.into_iter().skip(top).take(height).collect();
-    (
-        shown,
-        format!(
-            " lines {}-{} of {n}{}{} ",
-            top + 1,
-            top + height,
-            if top > 0 { " ^" } else { "" },
-            if top + height < n { " v PgDn" } else { " PgUp" }
-        ),
-    )
+    let up = if top > 0 { " ^" } else { "" };
+    let down = top + height < n;
+    let long = format!(
+        " lines {}-{} of {n}{up}{} ",
+        top + 1,
+        top + height,
+        match (paged, down) {
+            (true, true) => " v PgDn",
+            (true, false) => " PgUp",
+            (false, true) => " v",
+            (false, false) => "",
+        }
+    );
+    // A narrow block keeps the count and the arrows, whole.
+    let short = format!(
+        " {}-{} of {n}{up}{} ",
+        top + 1,
+        top + height,
+        if down { " v" } else { "" }
+    );
+    let more = fit_title(&[long, short], area.width);
+    (shown, more)
 }
 
 fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMap, String)>) {
@@ -754,7 +813,7 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
             lines.push(Line::from(Span::styled(format!(" {}", p.place), th.bad())));
         }
     }
-    let (lines, more) = window(lines, area, app.scroll as usize, None);
+    let (lines, more) = window(app, lines, area, Some(app.scroll as usize), None);
     f.render_widget(
         Paragraph::new(lines).block(
             th.block(" summary ")
@@ -789,7 +848,13 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         format!("{} summary", if on_summary { ">" } else { " " }),
         if on_summary { th.sel() } else { th.dim() },
     )));
-    let (lines, more) = window(lines, la, 0, Some(if on_summary { n } else { app.row }));
+    let (lines, more) = window(
+        app,
+        lines,
+        la,
+        None,
+        Some(if on_summary { n } else { app.row }),
+    );
     f.render_widget(
         Paragraph::new(lines).block(
             th.block(" flow path ")
@@ -815,11 +880,18 @@ fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             ))],
         }
     };
-    let (body, more) = window(body, ra, app.scroll as usize, None);
+    let (body, more) = window(app, body, ra, Some(app.scroll as usize), None);
     f.render_widget(
         Paragraph::new(body).block(
-            th.block(" how each value was obtained (Up/Down station, PgUp/PgDn scroll) ")
-                .title_bottom(Line::from(more).right_aligned()),
+            th.block(fit_title(
+                &[
+                    " how each value was obtained (Up/Down station, PgUp/PgDn scroll) ".into(),
+                    " how each value was obtained ".into(),
+                    " how obtained ".into(),
+                ],
+                ra.width,
+            ))
+            .title_bottom(Line::from(more).right_aligned()),
         ),
         ra,
     );
@@ -988,6 +1060,9 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     }
     tl.push(Line::from(Span::styled(units_row, th.dim())));
     let room = (ta.height as usize).saturating_sub(4);
+    if sw.rows.len() > room {
+        scrolls(app, room, sw.rows.len() - room);
+    }
     let first = (app.scroll as usize).min(sw.rows.len().saturating_sub(room));
     for (x, ys) in sw.rows.iter().skip(first).take(room) {
         let mut l = fit(
@@ -1192,7 +1267,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             } else {
                 detail.len() as u16 + 1
             };
-            let h = (listed.len().max(1) as u16 + 4 + extra).min(area.height);
+            let h = (listed.len().max(1) as u16 + 3 + extra).min(area.height);
             let r = centered(area, w, h);
             clear_around(f, r, area);
             let visible = h.saturating_sub(3 + extra) as usize;
@@ -1239,18 +1314,23 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 },
                 th.dim(),
             )));
-            f.render_widget(
-                Paragraph::new(lines).block(th.block(format!(" {title}{more} "))),
-                r,
+            // A title too long for the popup loses its explanation in
+            // parentheses, never the count.
+            let plain = title.split(" (").next().unwrap_or(title);
+            let head = fit_title(
+                &[format!(" {title}{more} "), format!(" {plain}{more} ")],
+                r.width,
             );
+            f.render_widget(Paragraph::new(lines).block(th.block(head)), r);
         }
         Popup::Setup { sel } => {
             let rows = app.setup_rows();
-            let h = (rows.len() as u16 + 4).min(area.height);
-            let r = centered(area, 70, h);
+            let h = (rows.len() as u16 + 3).min(area.height);
+            let r = centered(area, 70.min(area.width), h);
             clear_around(f, r, area);
             let b = app.book();
             let mut lines = Vec::new();
+            let mut keep = None;
             for (i, row) in rows.iter().enumerate() {
                 let text = match (row, b) {
                     (SetupRow::Title, Some(b)) => format!("title            : {}", b.title),
@@ -1300,6 +1380,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 };
                 let marker = if i == *sel { "> " } else { "  " };
                 let style = if i == *sel {
+                    keep = Some(lines.len());
                     th.sel()
                 } else if matches!(row, SetupRow::Given(_)) {
                     th.given()
@@ -1308,17 +1389,20 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 };
                 lines.push(Line::from(Span::styled(format!("{marker}{text}"), style)));
             }
-            lines.push(Line::from(Span::styled(
-                "Enter edits or toggles; Esc closes",
-                th.dim(),
-            )));
+            // Long titles and notes wrap; a list longer than the popup
+            // follows the selection and says which lines are shown.
+            let (lines, more) = window(app, lines, r, None, keep);
             f.render_widget(
-                Paragraph::new(lines).block(th.block(" workbook, ambient and gas ")),
+                Paragraph::new(lines).block(
+                    th.block(" workbook, ambient and gas ")
+                        .title_bottom(Line::from(" Enter edits, Esc closes ").left_aligned())
+                        .title_bottom(Line::from(more).right_aligned()),
+                ),
                 r,
             );
         }
         Popup::SweepForm { fields, sel } => {
-            let r = centered(area, 72, 10);
+            let r = centered(area, 72.min(area.width), 10);
             clear_around(f, r, area);
             let labels = [
                 "vary (given path)",
@@ -1341,7 +1425,15 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 "Tab/Up/Down field, Enter runs, Esc back, ctrl-u clears",
                 th.dim(),
             )));
-            f.render_widget(Paragraph::new(lines).block(th.block(" sweep set-up ")), r);
+            // A long path or report list wraps rather than running off.
+            let (lines, more) = window(app, lines, r, None, Some(*sel));
+            f.render_widget(
+                Paragraph::new(lines).block(
+                    th.block(" sweep set-up ")
+                        .title_bottom(Line::from(more).right_aligned()),
+                ),
+                r,
+            );
         }
         Popup::ScanList { sel, flagged } => {
             let Some(sb) = &app.scans else {
@@ -1351,13 +1443,33 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             let h = area.height;
             let r = area;
             clear_around(f, r, area);
-            let visible = h.saturating_sub(4) as usize;
+            let w = r.width.saturating_sub(4) as usize;
+            // The selected scan's flags or reason, whole, under the list.
+            let detail: Vec<String> = list
+                .get(*sel)
+                .and_then(|&i| sb.marks.get(i))
+                .map(|m| match m {
+                    ScanMark::Ok => Vec::new(),
+                    ScanMark::Flagged(first, n) => hang(&format!("{n} flag(s): {first}"), w, 2),
+                    ScanMark::Unusable(why) => hang(&format!("not usable: {why}"), w, 2),
+                })
+                .unwrap_or_default();
+            let extra = if detail.is_empty() {
+                0
+            } else {
+                detail.len() + 1
+            };
+            let help = hang(
+                "Up/Down choose, Enter shows, f flagged only, Esc closes; * on screen",
+                w + 2,
+                2,
+            );
+            let visible = (h as usize).saturating_sub(2 + help.len() + extra).max(1);
             let skip = if *sel >= visible {
                 sel + 1 - visible
             } else {
                 0
             };
-            let w = r.width.saturating_sub(4) as usize;
             let mut lines: Vec<Line> = Vec::new();
             for (li, &i) in list.iter().enumerate().skip(skip).take(visible) {
                 let mark = match sb.marks.get(i) {
@@ -1380,18 +1492,29 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 let marker = if li == *sel { "> " } else { "  " };
                 lines.push(Line::from(Span::styled(format!("{marker}{text}"), style)));
             }
-            lines.push(Line::from(Span::styled(
-                "Up/Down, PageUp/PageDown choose; Enter shows; f flagged only; Esc closes; * = on screen",
-                th.dim(),
-            )));
-            let title = format!(
-                " scans of {} ({} of {}{}) ",
-                sb.path
-                    .file_name()
-                    .map_or(String::new(), |n| n.to_string_lossy().to_string()),
-                list.len(),
-                sb.rows.len(),
-                if *flagged { ", flagged only" } else { "" }
+            if !detail.is_empty() {
+                lines.push(Line::from(Span::styled("-".repeat(w + 2), th.dim())));
+                lines.extend(detail.into_iter().map(Line::from));
+            }
+            for l in &help {
+                lines.push(Line::from(Span::styled(l.clone(), th.dim())));
+            }
+            let name = sb
+                .path
+                .file_name()
+                .map_or(String::new(), |n| n.to_string_lossy().to_string());
+            let only = if *flagged { ", flagged only" } else { "" };
+            let (a, b) = (skip + 1, (skip + visible).min(list.len()));
+            let title = fit_title(
+                &[
+                    format!(
+                        " scans of {name} ({a}-{b} of {} listed, {} in the file{only}) ",
+                        list.len(),
+                        sb.rows.len()
+                    ),
+                    format!(" scans ({a}-{b} of {}{only}) ", list.len()),
+                ],
+                r.width,
             );
             f.render_widget(Paragraph::new(lines).block(th.block(title)), r);
         }
@@ -1423,11 +1546,14 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             }
             let visible = r.height.saturating_sub(2) as usize;
             let top = (*scroll as usize).min(lines.len().saturating_sub(visible));
-            let title = format!(
-                " help: lines {}-{} of {} (Up/Down scroll, any other key closes) ",
-                top + 1,
-                (top + visible).min(lines.len()),
-                lines.len()
+            let (a, b, n) = (top + 1, (top + visible).min(lines.len()), lines.len());
+            let title = fit_title(
+                &[
+                    format!(" help: lines {a}-{b} of {n} (Up/Down scroll, any other key closes) "),
+                    format!(" help: lines {a}-{b} of {n} (Up/Down scroll) "),
+                    format!(" help: {a}-{b} of {n} "),
+                ],
+                r.width,
             );
             f.render_widget(
                 Paragraph::new(lines)
