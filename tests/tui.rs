@@ -739,7 +739,7 @@ fn given_and_derived_are_told_apart_without_colour() {
     let (app, _) = open_with(ascii());
     let b = render_buffer(&app, 80, 24);
     let y4 = row_of(&b, "  4          combustor");
-    let x = col_of(&b, y4, "=1450.0");
+    let x = col_of(&b, y4, "*1450.0");
     assert!(
         b[(x, y4)].modifier.contains(Modifier::BOLD),
         "given is bold"
@@ -752,12 +752,12 @@ fn given_and_derived_are_told_apart_without_colour() {
     assert!(!b[(x, y3)].modifier.contains(Modifier::BOLD));
     // The given mass flow of the free stream carries its marker too.
     let y0 = row_of(&b, "> 0          freestream");
-    assert!(col_of(&b, y0, "=20.000") > 0);
+    assert!(col_of(&b, y0, "*20.000") > 0);
     // In colour the given also has a colour.
     let (app, _) = open();
     let b = render_buffer(&app, 80, 24);
     let y4 = row_of(&b, "  4          combustor");
-    let x = col_of(&b, y4, "=1450.0");
+    let x = col_of(&b, y4, "*1450.0");
     assert_eq!(b[(x, y4)].fg, Color::Cyan);
 }
 

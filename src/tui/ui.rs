@@ -1,6 +1,8 @@
 //! Drawing: every view and popup from `&App`. Nothing here changes state.
 //!
-//! Given values carry a `=` before the number and a bold attribute;
+//! Given values (typed by the user, or set by a scan or a goal) carry a
+//! `*` before the number and a bold attribute, explained in the grid's
+//! unit row and in help;
 //! values that could not be computed show `!!` (own process failed) or
 //! `..` (blocked upstream); undefined ones show `-`. The selection has a `>`
 //! marker as well as the reverse attribute, so none of this relies on colour.
@@ -306,7 +308,8 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         fit_left("station", NAME_W - 2),
         fit_left(" via", VIA_W)
     );
-    let mut unit_row = " ".repeat(NAME_W + VIA_W);
+    // The legend of the given mark, where the unit row has room.
+    let mut unit_row = fit_left(&format!("  {GIVEN_MARK} given"), NAME_W + VIA_W);
     for k in &shown {
         let (label, q) = key_meta(k);
         // Plain ASCII drawing: a label with other characters ("W√Tt/(A p)")
@@ -368,7 +371,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
                     Some(x) => {
                         let shownv = present::shown(x, q, app.system);
                         let t = crate::report::sig(shownv, 5);
-                        if given { format!("={t}") } else { t }
+                        if given { format!("{GIVEN_MARK}{t}") } else { t }
                     }
                     None => "-".to_string(),
                 },
@@ -1093,10 +1096,13 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     f.render_widget(Paragraph::new(tl).block(th.block(title)), ta);
 }
 
+/// The mark before a given value in the grid (with bold): "typed by you".
+const GIVEN_MARK: &str = "*";
+
 /// Paragraphs after the key table in help.
 const HELP_NOTES: &[&str] = &[
     "In a popup: type a value with or without unit (\"14.7 psia\", \"59 degF\"); the field opens with the value selected, so typing replaces it; Left/Right, Home/End move; ctrl-u clears; Enter applies, Esc cancels.",
-    "Marks in the grid: a value in bold with = is a given (typed by you); !! marks a station whose process has a problem; .. one blocked by a problem upstream; xx a value withheld (the selected scan could not be applied); - a value that is not defined there.",
+    "Marks in the grid: a value in bold after * is a given (typed by you, or set by the scan or a goal shown; the panel says which); !! marks a station whose process has a problem; .. one blocked by a problem upstream; xx a value withheld (the selected scan could not be applied); - a value that is not defined there.",
     "Keys can be changed in the settings file (see the README).",
 ];
 
@@ -1460,7 +1466,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 detail.len() + 1
             };
             let help = hang(
-                "Up/Down choose, Enter shows, f flagged only, Esc closes; * on screen",
+                "Up/Down choose, Enter shows, f flagged only, Esc closes; @ on screen",
                 w + 2,
                 2,
             );
@@ -1477,7 +1483,7 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                     Some(ScanMark::Flagged(first, n)) => format!("{n} flag(s): {first}"),
                     Some(ScanMark::Unusable(why)) => format!("NOT USABLE: {why}"),
                 };
-                let here = if Some(i) == sb.shown { "*" } else { " " };
+                let here = if Some(i) == sb.shown { "@" } else { " " };
                 let text = fit_left(
                     &format!("{here}{}  {mark}", scan_label(sb, i)),
                     w.saturating_sub(2),
