@@ -17,11 +17,12 @@
 //!   except rotational speed (a bare number is rpm) and angle (a bare
 //!   number is degrees), where a bare rad/s or radian would surprise an
 //!   engineer by a factor of about 10 or 57.
-//! - Pressures are absolute. Gauge units (psig, barg) are known, so an
-//!   engineer who types one is told why it was refused instead of getting
-//!   "unknown unit". Converting one needs a barometer reading, which is a
-//!   later feature. Through [`to_si`] and [`from_si`] a gauge unit
-//!   converts only a pressure *difference* from ambient.
+//! - Pressures are absolute. Gauge units (psig, barg, kPag) are read as
+//!   the barometer plus the reading where a barometer is known
+//!   ([`parse_at`]: a workbook with a measured ambient pressure); without
+//!   one they are refused with the reason. Through [`to_si`] and
+//!   [`from_si`] a gauge unit converts only a pressure *difference* from
+//!   ambient.
 //! - Parsing never guesses. "1,000" is not a number. A unit belonging to
 //!   another quantity is refused with the units that would fit. NaN and
 //!   infinity are refused. So are temperatures below absolute zero and
@@ -344,6 +345,7 @@ static PSIA: Unit = Unit::new(
 static INHG: Unit = Unit::new("inHg", Q::Pressure, IN_HG, &["in Hg"]);
 static PSIG: Unit = Unit::new("psig", Q::Pressure, LBF / (INCH * INCH), &[]).gauge_reading();
 static BARG: Unit = Unit::new("barg", Q::Pressure, 1.0e5, &[]).gauge_reading();
+static KPAG: Unit = Unit::new("kPag", Q::Pressure, 1.0e3, &[]).gauge_reading();
 
 static KG_S: Unit = Unit::new("kg/s", Q::MassFlow, 1.0, &[]);
 static LBM_S: Unit = Unit::new("lbm/s", Q::MassFlow, LBM, &["lb/s"]);
@@ -530,6 +532,7 @@ static UNITS: &[&Unit] = &[
     &INHG,
     &PSIG,
     &BARG,
+    &KPAG,
     &KG_S,
     &LBM_S,
     &KG_H,
@@ -694,8 +697,9 @@ pub enum UnitError {
     /// A gauge pressure unit (psig, barg), which needs a barometer reading.
     #[error(
         "{field} \"{text}\": {unit} is a gauge reading, relative to the local \
-         barometer; converting it needs the barometric pressure, so enter an \
-         absolute pressure instead ({})",
+         barometer, and this workbook has none: give the ambient block a \
+         measured pressure (set-up, g: ambient measured p and T), or enter an \
+         absolute pressure ({})",
         accepted(Quantity::Pressure)
     )]
     GaugePressure {
@@ -930,6 +934,16 @@ fn names_non_finite(text: &str) -> bool {
     lower.starts_with("inf") || lower.starts_with("nan")
 }
 
+/// The gauge reading (Pa above the barometer) of a text with a gauge unit
+/// ("5 psig"); `None` for an absolute value or a text that does not parse.
+pub fn gauge_reading(text: &str) -> Option<f64> {
+    let text = text.trim().replace('\u{2212}', "-");
+    let (number, rest) = split_number(&text);
+    let unit = find_unit_for(rest.trim(), Quantity::Pressure).filter(|u| u.gauge)?;
+    let v: f64 = number.parse().ok()?;
+    Some(to_si(v, unit)).filter(|x| x.is_finite())
+}
+
 /// Parse what a user typed at a prompt or on the command line, where
 /// values are shown in `system`'s display units: as [`parse`], but a bare
 /// number is refused where the display unit is not the one a bare number
@@ -940,6 +954,18 @@ pub fn parse_stated(
     quantity: Quantity,
     field: &str,
     system: UnitSystem,
+) -> Result<Parsed, UnitError> {
+    parse_stated_at(text, quantity, field, system, None)
+}
+
+/// [`parse_stated`] where the barometer (Pa) is known: gauge pressures are
+/// read from it ([`parse_at`]).
+pub fn parse_stated_at(
+    text: &str,
+    quantity: Quantity,
+    field: &str,
+    system: UnitSystem,
+    barometer: Option<f64>,
 ) -> Result<Parsed, UnitError> {
     let bare = text.trim().parse::<f64>().ok();
     let shown_as_read = display_unit(quantity, system).symbol == quantity.default_unit().symbol;
@@ -953,7 +979,7 @@ pub fn parse_stated(
             expected: quantity,
         });
     }
-    parse(text, quantity, field)
+    parse_at(text, quantity, field, barometer)
 }
 
 /// Parse what an engineer typed into a field holding `quantity`.
@@ -963,6 +989,18 @@ pub fn parse_stated(
 /// "-40 degF", "1e5 Pa", "4 %". A bare number is in the quantity's
 /// [`Quantity::default_unit`]. `field` names the field in any error.
 pub fn parse(text: &str, quantity: Quantity, field: &str) -> Result<Parsed, UnitError> {
+    parse_at(text, quantity, field, None)
+}
+
+/// [`parse`] where the local barometric pressure is known (Pa): a gauge
+/// pressure ("5 psig", "0.3 barg") is read as the barometer plus the
+/// reading. Without a barometer a gauge unit is refused.
+pub fn parse_at(
+    text: &str,
+    quantity: Quantity,
+    field: &str,
+    barometer: Option<f64>,
+) -> Result<Parsed, UnitError> {
     let original = text;
     let text = text.trim().replace('\u{2212}', "-");
     let field_s = || field.to_string();
@@ -1031,14 +1069,18 @@ pub fn parse(text: &str, quantity: Quantity, field: &str) -> Result<Parsed, Unit
             accepted: accepted(quantity),
         });
     }
-    if unit.gauge {
-        return Err(UnitError::GaugePressure {
-            field: field_s(),
-            text: text_s(),
-            unit: unit.symbol,
-        });
-    }
-    let si = to_si(value, unit);
+    let base = match (unit.gauge, barometer) {
+        (false, _) => 0.0,
+        (true, Some(b)) if b.is_finite() => b,
+        (true, _) => {
+            return Err(UnitError::GaugePressure {
+                field: field_s(),
+                text: text_s(),
+                unit: unit.symbol,
+            });
+        }
+    };
+    let si = to_si(value, unit) + base;
     if !si.is_finite() {
         return Err(UnitError::NotFinite {
             field: field_s(),

@@ -86,10 +86,50 @@ impl Given {
         }
     }
 
-    fn resolve(&mut self, q: Quantity, field: &str) -> Result<(), UnitError> {
-        self.si = units::parse(&self.text, q, field)?.si;
+    fn resolve(
+        &mut self,
+        q: Quantity,
+        field: &str,
+        barometer: Option<f64>,
+    ) -> Result<(), UnitError> {
+        self.si = units::parse_at(&self.text, q, field, barometer)?.si;
         self.varied = false;
         Ok(())
+    }
+
+    /// Parse `text` where the barometer (Pa) is known: a gauge pressure is
+    /// the barometer plus the reading.
+    pub fn parse_at(
+        text: &str,
+        quantity: Quantity,
+        field: &str,
+        barometer: Option<f64>,
+    ) -> Result<Given, UnitError> {
+        let p = units::parse_at(text, quantity, field, barometer)?;
+        Ok(Given {
+            text: text.trim().to_string(),
+            si: p.si,
+            varied: false,
+        })
+    }
+
+    /// The reading of a gauge pressure given (Pa above the barometer), or
+    /// `None` for an absolute one.
+    pub fn gauge(&self) -> Option<f64> {
+        units::gauge_reading(&self.text)
+    }
+
+    /// Follow a new barometer: the SI value of a gauge given typed as text
+    /// (not one a program set) is the barometer plus its reading. Returns
+    /// whether it changed.
+    pub fn follow_barometer(&mut self, barometer: f64) -> bool {
+        match self.gauge() {
+            Some(g) if !self.varied && self.si != g + barometer => {
+                self.si = g + barometer;
+                true
+            }
+            _ => false,
+        }
     }
 }
 
@@ -693,6 +733,10 @@ pub struct GivenField<'a> {
     pub given: &'a mut Given,
 }
 
+/// The path of the measured ambient pressure: the barometer gauge
+/// pressures are read from.
+pub const BAROMETER: &str = "ambient.pressure";
+
 /// One given met by [`Workbook::visit_givens_ref`].
 pub struct GivenRef<'a> {
     /// Scope ("ambient", "gas", "station", "process", "shaft").
@@ -1042,8 +1086,14 @@ impl Workbook {
             errors.push(BookError::Version { found: self.format });
             return Err(errors);
         }
+        // The barometer first: gauge pressures elsewhere are read from it.
+        if let Condition::Measured { pressure, .. } = &mut self.ambient.condition {
+            let _ = pressure.resolve(Quantity::Pressure, BAROMETER, None);
+        }
+        let baro = self.barometer();
         self.visit_givens(&mut |f| {
-            if let Err(e) = f.given.resolve(f.quantity, &f.path()) {
+            let at = if f.is(BAROMETER) { None } else { baro };
+            if let Err(e) = f.given.resolve(f.quantity, &f.path(), at) {
                 errors.push(e.into());
             } else if let Err(e) = f.check(f.given.si, &f.given.text, true) {
                 errors.push(e);
@@ -1065,7 +1115,10 @@ impl Workbook {
             let Some(q) = target_q[i] else {
                 continue;
             };
-            if let Err(e) = goal.value.resolve(q, &format!("goal {} value", i + 1)) {
+            if let Err(e) = goal
+                .value
+                .resolve(q, &format!("goal {} value", i + 1), baro)
+            {
                 errors.push(e.into());
             }
         }
@@ -1086,7 +1139,7 @@ impl Workbook {
             // compiles, with the givens that place has.
             if let Some((_, q)) = bounds.iter().find(|(j, _)| *j == i) {
                 for (b, name) in [(&mut goal.low, "low"), (&mut goal.high, "high")] {
-                    if let Err(e) = b.resolve(*q, &format!("goal {} {name}", i + 1)) {
+                    if let Err(e) = b.resolve(*q, &format!("goal {} {name}", i + 1), baro) {
                         errors.push(e.into());
                     }
                 }
@@ -1099,12 +1152,42 @@ impl Workbook {
         }
     }
 
-    /// Set the given at `path` from typed text. On error the old value stays.
+    /// The local barometric pressure (Pa) gauge readings are relative to:
+    /// the measured ambient pressure, when the ambient block is measured.
+    pub fn barometer(&self) -> Option<f64> {
+        match &self.ambient.condition {
+            Condition::Measured { pressure, .. } if pressure.si.is_finite() => Some(pressure.si),
+            _ => None,
+        }
+    }
+
+    /// Every gauge given follows the barometer now in use; the paths of
+    /// those that changed.
+    pub fn follow_barometer(&mut self) -> Vec<String> {
+        let Some(b) = self.barometer() else {
+            return Vec::new();
+        };
+        let mut moved = Vec::new();
+        self.visit_givens(&mut |f| {
+            if !f.is(BAROMETER) && f.given.follow_barometer(b) {
+                moved.push(f.path());
+            }
+        });
+        moved
+    }
+
+    /// Set the given at `path` from typed text. On error the old value
+    /// stays. A gauge pressure is read from the barometer; a new barometer
+    /// moves every gauge given with it.
     pub fn set_given(&mut self, path: &str, text: &str) -> Result<(), BookError> {
         let mut result: Option<Result<(), BookError>> = None;
+        let baro = self.barometer();
+        // A new barometer moves the gauge givens: all of it or none.
+        let before = (path == BAROMETER).then(|| self.clone());
         self.visit_givens(&mut |f| {
             if f.is(path) {
-                result = Some(match Given::parse(text, f.quantity, &f.path()) {
+                let at = if f.is(BAROMETER) { None } else { baro };
+                result = Some(match Given::parse_at(text, f.quantity, &f.path(), at) {
                     Ok(g) => match f.check(g.si, &g.text, true) {
                         Ok(()) => {
                             *f.given = g;
@@ -1116,6 +1199,25 @@ impl Workbook {
                 });
             }
         });
+        if let (Some(Ok(())), Some(before)) = (&result, before) {
+            // Each gauge given read again from the new barometer, and
+            // checked as if typed.
+            let baro = self.barometer();
+            let mut bad: Option<BookError> = None;
+            self.visit_givens(&mut |f| {
+                if bad.is_some() || f.is(BAROMETER) || f.given.gauge().is_none() || f.given.varied {
+                    return;
+                }
+                bad = match f.given.resolve(f.quantity, &f.path(), baro) {
+                    Err(e) => Some(e.into()),
+                    Ok(()) => f.check(f.given.si, &f.given.text, true).err(),
+                };
+            });
+            if let Some(e) = bad {
+                *self = before;
+                return Err(e);
+            }
+        }
         result.unwrap_or_else(|| {
             Err(BookError::Unknown {
                 whose: "the edit".into(),

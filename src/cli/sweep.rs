@@ -50,8 +50,13 @@ pub(super) fn run(a: Args) -> Result<u8, Failure> {
     let q = engine
         .given_address(path)
         .map_err(|e| Failure::bad(format!("--vary: {e}")))?;
+    // Gauge pressures are read from the workbook's barometer.
+    let baro = engine
+        .book()
+        .barometer()
+        .filter(|_| path != crate::book::BAROMETER);
     let stated = |text: &str, what: &str| {
-        units::parse_stated(text, q, what, a.units.into()).map_err(Failure::bad)
+        units::parse_stated_at(text, q, what, a.units.into(), baro).map_err(Failure::bad)
     };
     let bad = |e: String| Failure::bad(format!("--vary: {e}"));
     // Values and ranges, comma separated, as every command reads them;

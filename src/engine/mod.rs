@@ -240,6 +240,8 @@ pub struct Engine {
     dirty: Vec<bool>,
     /// Scratch marks of the processes a recompute changed.
     changed: Vec<bool>,
+    /// Some given is a gauge pressure (it follows the barometer).
+    gauged: bool,
     goals: Vec<GoalOutcome>,
     summary: Summary,
     evaluations: u64,
@@ -568,6 +570,10 @@ impl Engine {
             summary: Summary::default(),
             evaluations: 0,
             withheld: None,
+            gauged: book
+                .givens()
+                .iter()
+                .any(|(_, _, t, _)| crate::units::gauge_reading(t).is_some()),
             book,
         };
         let bad = e.check_references();
@@ -625,6 +631,15 @@ impl Engine {
     /// A bad value is refused and the old one kept.
     pub fn set_given(&mut self, path: &str, text: &str) -> Result<(), BookError> {
         self.book.set_given(path, text)?;
+        self.gauged |= crate::units::gauge_reading(text).is_some();
+        // A new barometer moved the gauge givens with it.
+        if self.gauged && path == crate::book::BAROMETER {
+            for (p, _, t, _) in self.book.givens() {
+                if crate::units::gauge_reading(&t).is_some() {
+                    self.touch(&p);
+                }
+            }
+        }
         self.touch(path);
         self.recompute();
         Ok(())
@@ -758,6 +773,13 @@ impl Engine {
     }
 
     fn recompute(&mut self) {
+        // Gauge givens follow the barometer in use (a scan's or a sweep's
+        // ambient pressure included).
+        if self.gauged {
+            for p in self.book.follow_barometer() {
+                self.touch(&p);
+            }
+        }
         self.run_nodes();
         if !self.book.goals.is_empty() && self.withheld.is_none() {
             self.solve_goals();

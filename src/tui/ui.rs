@@ -462,6 +462,12 @@ fn given_line(app: &App, path: &str) -> Option<(String, String)> {
         {
             text.to_string()
         }
+        // A gauge reading: the absolute value and the barometer it is from.
+        Origin::Typed if g.gauge().is_some() => format!(
+            "{text}  ({shown}: barometer {} + reading)",
+            b.barometer()
+                .map_or("?".into(), |p| with_unit(p, Quantity::Pressure, app.system))
+        ),
         Origin::Typed => format!("{text}  ({shown})"),
         Origin::Scan(label, cells, unit) => {
             let raw: Vec<String> = cells.iter().map(|(c, v)| format!("{c} {v}")).collect();

@@ -9,8 +9,14 @@ impl App {
             return Err("no workbook".into());
         };
         // A bare number under a shown unit is refused, not read in SI.
+        // A gauge pressure is read from the workbook's barometer.
         if let Some((q, _)) = engine.book().given(path) {
-            crate::units::parse_stated(text, q, path, self.system).map_err(|e| e.to_string())?;
+            let baro = engine
+                .book()
+                .barometer()
+                .filter(|_| path != crate::book::BAROMETER);
+            crate::units::parse_stated_at(text, q, path, self.system, baro)
+                .map_err(|e| e.to_string())?;
         }
         let before = engine.book().clone();
         engine.set_given(path, text).map_err(|e| e.to_string())?;

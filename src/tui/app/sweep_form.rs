@@ -89,10 +89,14 @@ impl App {
             .into_iter()
             .find(|(p, ..)| *p == vary)
             .ok_or(format!("no given at \"{vary}\""))?;
-        let from = units::parse_stated(&fields[1], q, "from", self.system)
+        let baro = e
+            .book()
+            .barometer()
+            .filter(|_| vary != crate::book::BAROMETER);
+        let from = units::parse_stated_at(&fields[1], q, "from", self.system, baro)
             .map_err(|e| e.to_string())?
             .si;
-        let to = units::parse_stated(&fields[2], q, "to", self.system)
+        let to = units::parse_stated_at(&fields[2], q, "to", self.system, baro)
             .map_err(|e| e.to_string())?
             .si;
         let steps: usize = fields[3]
