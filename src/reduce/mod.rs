@@ -79,6 +79,9 @@ impl Unc {
 struct PlanChannel {
     given: String,
     label: String,
+    /// What an engineer calls it: the given in words and its columns
+    /// ("inlet tt (T1A+T1B)").
+    name: String,
     cols: Vec<usize>,
     weights: Vec<f64>,
     unit: &'static Unit,
@@ -237,6 +240,7 @@ fn plan_channel(
         } else {
             c.given.clone()
         },
+        name: channel_name(&c.given, &c.columns),
         systematic: parse_unc(&c.systematic, q, "systematic", &given)?,
         random: parse_unc(&c.random, q, "random", &given)?,
         given,
@@ -457,10 +461,10 @@ impl Plan {
     }
 
     /// Uncertainty variables: (label, nominal, systematic u, random u, gauge
-    /// channels it shifts). The barometer is a variable that shifts every
-    /// gauge channel.
-    fn variables(&self, inputs: &Inputs) -> Vec<(String, f64, f64, f64, Vec<usize>)> {
-        let mut v: Vec<(String, f64, f64, f64, Vec<usize>)> = self
+    /// channels it shifts, name in words). The barometer is a variable
+    /// that shifts every gauge channel.
+    fn variables(&self, inputs: &Inputs) -> Vec<Variable> {
+        let mut v: Vec<Variable> = self
             .channels
             .iter()
             .enumerate()
@@ -472,6 +476,7 @@ impl Plan {
                     c.systematic.map_or(0.0, |u| u.value(r)),
                     c.random.map_or(0.0, |u| u.value(r)),
                     vec![i],
+                    c.name.clone(),
                 )
             })
             .collect();
@@ -489,10 +494,47 @@ impl Plan {
                 b.systematic.map_or(0.0, |u| u.value(baro)),
                 b.random.map_or(0.0, |u| u.value(baro)),
                 gauges,
+                b.name.clone(),
             ));
         }
         v
     }
+}
+
+/// An uncertainty variable: (label, nominal, systematic u, random u, the
+/// channels it shifts, name in words).
+type Variable = (String, f64, f64, f64, Vec<usize>, String);
+
+/// The given in words with its columns: "inlet tt (T1A+T1B)", "station 2
+/// pt (P2A+P2B)", "barometer (BARO)".
+fn channel_name(given: &str, columns: &[String]) -> String {
+    let what = match given.split('.').collect::<Vec<_>>().as_slice() {
+        [] | [""] => "barometer".to_string(),
+        ["process", name, key] => format!("{name} {key}"),
+        ["station", name, key] => format!("station {name} {key}"),
+        ["shaft", name, key] => format!("shaft {name} {key}"),
+        ["ambient", key] => format!("ambient {key}"),
+        _ => given.to_string(),
+    };
+    format!("{what} ({})", columns.join("+"))
+}
+
+/// One input's part in a result's uncertainty.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Part {
+    /// The channel's key, as in [`Uncertainty::contributors`].
+    pub path: String,
+    /// Its name in words with its columns ("inlet tt (T1A+T1B)").
+    pub name: String,
+    /// Sensitivity of the result to the input, SI per SI (central
+    /// difference through the engine).
+    pub sensitivity: f64,
+    /// The input's systematic and random standard uncertainties, SI.
+    pub systematic: f64,
+    /// See `systematic`.
+    pub random: f64,
+    /// Its share of the result's variance.
+    pub share: f64,
 }
 
 /// Uncertainty of one result.
@@ -506,6 +548,9 @@ pub struct Uncertainty {
     pub random: f64,
     /// Channels and their share of the variance, largest first.
     pub contributors: Vec<(String, f64)>,
+    /// Each input's sensitivity and standard uncertainties, in the order of
+    /// `contributors`.
+    pub parts: Vec<Part>,
 }
 
 impl Uncertainty {
@@ -546,7 +591,7 @@ pub fn linear(
         .map(|r| engine.value(r).ok().flatten())
         .collect();
     let mut theta: Vec<Vec<Option<f64>>> = Vec::with_capacity(vars.len());
-    for (_, x, b, s, chans) in &vars {
+    for (_, x, b, s, chans, _) in &vars {
         let u = (b * b + s * s).sqrt();
         if u == 0.0 {
             theta.push(vec![Some(0.0); report.len()]);
@@ -583,23 +628,30 @@ pub fn linear(
             let mut b2 = 0.0;
             let mut s2 = 0.0;
             let mut parts = Vec::new();
-            for (j, (label, _, b, s, _)) in vars.iter().enumerate() {
+            for (j, (label, _, b, s, _, name)) in vars.iter().enumerate() {
                 let t = theta[j][k]?;
                 b2 += (t * b).powi(2);
                 s2 += (t * s).powi(2);
-                parts.push((label.clone(), (t * b).powi(2) + (t * s).powi(2)));
+                parts.push(Part {
+                    path: label.clone(),
+                    name: name.clone(),
+                    sensitivity: t,
+                    systematic: *b,
+                    random: *s,
+                    share: (t * b).powi(2) + (t * s).powi(2),
+                });
             }
             let total = b2 + s2;
-            let mut contributors: Vec<(String, f64)> = parts
-                .into_iter()
-                .map(|(l, v)| (l, if total > 0.0 { v / total } else { 0.0 }))
-                .collect();
-            contributors.sort_by(|a, b| b.1.total_cmp(&a.1));
+            for p in &mut parts {
+                p.share = if total > 0.0 { p.share / total } else { 0.0 };
+            }
+            parts.sort_by(|a, b| b.share.total_cmp(&a.share));
             Some(Uncertainty {
                 u95: 2.0 * total.sqrt(),
                 systematic: b2.sqrt(),
                 random: s2.sqrt(),
-                contributors,
+                contributors: parts.iter().map(|p| (p.path.clone(), p.share)).collect(),
+                parts,
             })
         })
         .collect()
@@ -652,7 +704,7 @@ pub fn monte_carlo(
     let mut count = vec![0usize; report.len()];
     for _ in 0..n.max(2) {
         let mut values = inputs.values.clone();
-        for (_, _, b, s, chans) in &vars {
+        for (_, _, b, s, chans, _) in &vars {
             let d = b * rng.normal() + s * rng.normal();
             for &i in chans {
                 values[i] += d;

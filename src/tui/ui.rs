@@ -750,21 +750,7 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
     let mut lines = Vec::new();
     if let Some((m, path)) = unc {
         match m.get(&path) {
-            Some(u) => {
-                let q = present::quantity(&path);
-                let zero = present::shown(0.0, q, app.system);
-                lines.push(Line::from(Span::styled(
-                    format!(
-                        "{path} {} {} (95 %)",
-                        if th.ascii { "+/-" } else { "\u{b1}" },
-                        crate::report::sig(present::shown(u.u95, q, app.system) - zero, 3)
-                    ),
-                    Style::default().add_modifier(Modifier::BOLD),
-                )));
-                for (l, share) in u.contributors.iter().take(3).filter(|(_, s)| *s > 0.0) {
-                    lines.push(Line::from(format!(" {:>3.0} % {l}", share * 100.0)));
-                }
-            }
+            Some(u) => lines.extend(uncertainty_lines(app, th, &path, u)),
             None => lines.push(Line::from(format!("{path}: no uncertainty"))),
         }
     }
@@ -830,6 +816,72 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
         ),
         area,
     );
+}
+
+/// A value in display units as a difference (an uncertainty, a
+/// sensitivity's scale): no offset of a temperature scale.
+fn span_of(si: f64, q: Quantity, system: units::UnitSystem) -> f64 {
+    present::shown(si, q, system) - present::shown(0.0, q, system)
+}
+
+/// The uncertainty of the selected value: expanded (95 %, k = 2) with its
+/// systematic and random standard parts, then each input that matters,
+/// by name, with its share of the variance and its sensitivity.
+fn uncertainty_lines(
+    app: &App,
+    th: &Theme,
+    path: &str,
+    u: &crate::reduce::Uncertainty,
+) -> Vec<Line<'static>> {
+    let sys = app.system;
+    let q = present::quantity(path);
+    let uy = unit_label(q, sys);
+    let pm = if th.ascii { "+/-" } else { "\u{b1}" };
+    let what = match path.split('.').collect::<Vec<_>>().as_slice() {
+        ["station", name, key] => format!("{} at {name}", key_meta(key).0),
+        ["process", name, key] => format!("{name}: {}", figure_meta(key).0),
+        _ => path.to_string(),
+    };
+    let mut out = vec![Line::from(Span::styled(
+        format!(
+            "{what} {pm} {} {uy} (95 %, k = 2)",
+            crate::report::sig(span_of(u.u95, q, sys), 3)
+        ),
+        Style::default().add_modifier(Modifier::BOLD),
+    ))];
+    out.push(Line::from(format!(
+        " systematic {} {uy}, random {} {uy} (standard)",
+        crate::report::sig(span_of(u.systematic, q, sys), 3),
+        crate::report::sig(span_of(u.random, q, sys), 3)
+    )));
+    for p in u.parts.iter().take(4).filter(|p| p.share > 0.0) {
+        // The input's quantity: the given it feeds (the barometer's is a
+        // pressure).
+        let qx = app
+            .book()
+            .and_then(|b| b.given(&p.path))
+            .map_or(Quantity::Pressure, |(q, _)| q);
+        let ux = unit_label(qx, sys);
+        let scale_x = span_of(1.0, qx, sys);
+        let theta = if scale_x != 0.0 {
+            p.sensitivity * span_of(1.0, q, sys) / scale_x
+        } else {
+            p.sensitivity
+        };
+        let per = match (uy.is_empty(), ux.is_empty()) {
+            (true, true) => String::new(),
+            (false, true) => format!(" {uy}"),
+            (true, false) => format!(" per {ux}"),
+            (false, false) => format!(" {uy} per {ux}"),
+        };
+        out.push(Line::from(format!(
+            " {:>3.0} % {}: sensitivity {}{per}",
+            p.share * 100.0,
+            p.name,
+            crate::report::sig(theta, 3)
+        )));
+    }
+    out
 }
 
 fn walk_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
