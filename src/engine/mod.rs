@@ -21,6 +21,7 @@
 pub mod address;
 pub mod compute;
 pub mod explain;
+pub mod path;
 pub mod sweep;
 
 use crate::atmosphere::{self, AltitudeKind};

@@ -962,26 +962,31 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let Some(e) = app.engine.as_ref() else {
         return;
     };
+    let sys = app.system;
+    let to_shown = |(s, t): (f64, f64)| {
+        (
+            present::shown(s, Quantity::SpecificHeat, sys),
+            present::shown(t, Quantity::Temperature, sys),
+        )
+    };
     let mut pts = Vec::new();
     let mut labels = Vec::new();
     let names: Vec<String> = e.stations().iter().map(|s| s.name.clone()).collect();
+    let value = |i: usize| match e.station_status(i) {
+        StationStatus::Ok(v) => Some(v),
+        _ => None,
+    };
     for (i, s) in e.stations().iter().enumerate() {
-        let v = match e.station_status(i) {
-            StationStatus::Ok(v) => Some(v),
-            _ => None,
-        };
-        let sv = v.and_then(|v| e.station_key(v, "s"));
-        let tt = v.map(|v| v.tt);
-        match (sv, tt) {
-            (Some(sv), Some(tt)) => pts.push((
-                present::shown(sv, Quantity::SpecificHeat, app.system),
-                present::shown(tt, Quantity::Temperature, app.system),
-            )),
-            _ => pts.push((f64::NAN, f64::NAN)),
+        let v = value(i);
+        match v.and_then(|v| Some((e.entropy_of(v)?, v.tt))) {
+            Some(p) => pts.push(to_shown(p)),
+            None => pts.push((f64::NAN, f64::NAN)),
         }
         labels.push(s.name.as_str());
     }
-    let mut segs = Vec::new();
+    // Each process along its path between the stations it joins (the
+    // second stream of a mixer or split too).
+    let mut pairs = Vec::new();
     for p in &e.book().processes {
         let to = names.iter().position(|n| *n == p.to);
         let from = p
@@ -989,26 +994,61 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             .as_ref()
             .and_then(|f| names.iter().position(|n| n == f));
         if let (Some(a), Some(b)) = (from, to) {
-            segs.push((a, b));
+            pairs.push((a, b));
         }
         let kind = crate::kinds::of(&p.kind);
         if let Some(second) = kind.second_input()
             && let (Some(a), Some(b)) = (names.iter().position(|n| *n == second), to)
         {
-            segs.push((a, b));
+            pairs.push((a, b));
         }
         if let Some(second) = kind.second_output()
             && let (Some(a), Some(b)) = (from, names.iter().position(|n| *n == second))
         {
-            segs.push((a, b));
+            pairs.push((a, b));
+        }
+    }
+    let mut paths = Vec::new();
+    for (a, b) in pairs {
+        if let (Some(va), Some(vb)) = (value(a), value(b)) {
+            let path: Vec<(f64, f64)> = e
+                .ts_path(va, vb, 24)
+                .into_iter()
+                .map(|p| p.map_or((f64::NAN, f64::NAN), to_shown))
+                .collect();
+            paths.push(path);
+        }
+    }
+    // A few isobars of the ambient air for orientation: round pressures
+    // spanning the stations' total pressures.
+    let (mut pmin, mut pmax, mut tmin, mut tmax) = (f64::INFINITY, 0.0f64, f64::INFINITY, 0.0f64);
+    for i in 0..names.len() {
+        if let Some(v) = value(i) {
+            pmin = pmin.min(v.pt);
+            pmax = pmax.max(v.pt);
+            tmin = tmin.min(v.tt);
+            tmax = tmax.max(v.tt);
+        }
+    }
+    let mut guides = Vec::new();
+    if pmax > 0.0 && tmax > tmin {
+        for (p, label) in isobar_pressures(pmin, pmax, sys) {
+            let line: Vec<(f64, f64)> = e
+                .isobar(p, tmin, tmax, 24)
+                .into_iter()
+                .map(|q| q.map_or((f64::NAN, f64::NAN), to_shown))
+                .collect();
+            guides.push(plot::Guide {
+                points: line,
+                label,
+            });
         }
     }
     let mark = if th.ascii { '*' } else { '\u{25cf}' };
     let series = [Series {
-        points: pts,
-        segments: segs,
-        mark,
+        polylines: paths,
         labels,
+        ..Series::points(pts, mark)
     }];
     let inner = Rect {
         x: area.x + 1,
@@ -1016,18 +1056,20 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         width: area.width.saturating_sub(2),
         height: area.height.saturating_sub(2),
     };
-    let lines = plot::render(
+    let lines = plot::render_with(
         &series,
+        &guides,
         inner.width as usize,
         inner.height as usize,
         th.ascii,
         &format!(
             "entropy s [{}] from 298.15 K, 101.325 kPa",
-            unit_label(Quantity::SpecificHeat, app.system)
+            unit_label(Quantity::SpecificHeat, sys)
         ),
         &format!(
-            "total temperature Tt [{}]",
-            unit_label(Quantity::Temperature, app.system)
+            "total temperature Tt [{}]; {} process paths, : isobars of air",
+            unit_label(Quantity::Temperature, sys),
+            if th.ascii { "o" } else { "\u{2218}" }
         ),
     );
     f.render_widget(
@@ -1035,6 +1077,45 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             .block(th.block(" Tt-s diagram of the stations ")),
         area,
     );
+}
+
+/// Up to four round pressures (1, 2 or 5 times a power of ten in the
+/// display unit) between the lowest and highest total pressure, ends
+/// included where they are round already.
+fn isobar_pressures(pmin: f64, pmax: f64, sys: units::UnitSystem) -> Vec<(f64, String)> {
+    let scale = span_of(1.0, Quantity::Pressure, sys);
+    if !(scale > 0.0 && pmin > 0.0 && pmax >= pmin) {
+        return Vec::new();
+    }
+    let (lo, hi) = (pmin * scale, pmax * scale);
+    let mut round: Vec<(f64, String)> = Vec::new();
+    let mut k = lo.log10().floor() as i32 - 1;
+    while round.len() < 64 && 10f64.powi(k) <= hi * 10.0 {
+        for m in [1u32, 2, 5] {
+            let v = f64::from(m) * 10f64.powi(k);
+            if v >= lo * 0.999 && v <= hi * 1.001 {
+                // Written as the round number it is: "200", "0.5".
+                let text = if k >= 0 {
+                    format!("{}", m as u64 * 10u64.pow(k as u32))
+                } else {
+                    format!("{:.*}", (-k) as usize, v)
+                };
+                round.push((v, text));
+            }
+        }
+        k += 1;
+    }
+    // Spread: at most four, evenly through the list.
+    let n = round.len();
+    let pick: Vec<(f64, String)> = if n <= 4 {
+        round
+    } else {
+        (0..4).map(|i| round[i * (n - 1) / 3].clone()).collect()
+    };
+    let unit = unit_label(Quantity::Pressure, sys);
+    pick.into_iter()
+        .map(|(v, t)| (v / scale, format!("{t} {unit}")))
+        .collect()
 }
 
 /// An axis label with its unit in brackets (none for plain numbers).
@@ -1079,12 +1160,18 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let mark = if th.ascii { '*' } else { '\u{25cf}' };
     let inner_w = ca.width.saturating_sub(2) as usize;
     let inner_h = ca.height.saturating_sub(2) as usize;
+    // A point that could not be computed is marked on the x axis.
+    let failed: Vec<f64> = sw
+        .rows
+        .iter()
+        .filter(|(_, ys)| ys[0].is_none())
+        .map(|(x, _)| present::shown(*x, qv, app.system))
+        .collect();
     let lines = plot::render(
         &[Series {
-            points: pts,
             segments: segs,
-            mark,
-            labels: Vec::new(),
+            failed,
+            ..Series::points(pts, mark)
         }],
         inner_w,
         inner_h,
