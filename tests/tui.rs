@@ -693,7 +693,7 @@ fn a_sweep_runs_through_the_form_and_can_be_changed() {
         Some(Popup::SweepForm { fields, .. }) => {
             assert_eq!(fields[0], PR);
             assert_eq!(fields[3], "8");
-            assert_eq!(fields[4], "summary.thrust_net, summary.tsfc");
+            assert_eq!(fields[8], "summary.thrust_net, summary.tsfc");
         }
         other => panic!("Enter did not reopen the sweep form: {other:?}"),
     }
@@ -949,6 +949,80 @@ fn snapshot_problem() {
         "problem",
         &format!("{TO_PR} Enter ctrl-u 1 0 0 0 Enter j Enter ctrl-u 0 . 0 5 Enter"),
     );
+}
+
+#[test]
+fn a_carpet_is_set_up_from_the_choosers_and_its_table_scrolls_sideways() {
+    let (mut app, _) = open();
+    press(&mut app, "4");
+    // Typing on the vary row opens the chooser of givens with that search.
+    press(&mut app, "text:nozzle.cv");
+    match app.popups.last() {
+        Some(Popup::Choose { search, .. }) => assert_eq!(search, "nozzle.cv"),
+        other => panic!("no chooser: {other:?}"),
+    }
+    press(&mut app, "Enter");
+    let cv = book(&app).given("process.nozzle.cv").unwrap().1.si();
+    match app.popups.last() {
+        Some(Popup::SweepForm { fields, sel }) => {
+            assert_eq!(fields[0], "process.nozzle.cv");
+            // From and to follow the path: 80 % of its value up to the
+            // highest a velocity coefficient can be (1).
+            let from: f64 = fields[1].parse().unwrap();
+            let to: f64 = fields[2].parse().unwrap();
+            assert!(
+                (from - 0.8 * cv).abs() < 1e-9 && (to - 1.0).abs() < 1e-9,
+                "{fields:?}"
+            );
+            assert_eq!(*sel, 1);
+        }
+        other => panic!("{other:?}"),
+    }
+    // A second given: the compressor's pressure ratio, 8 to 12 (its value
+    // 10 +- 20 %), 4 steps.
+    press(&mut app, "Tab Tab Tab Enter text:pressure_ratio Enter");
+    // A third reported value, the nozzle exit velocity.
+    press(&mut app, r"Tab Tab Tab Enter text:station.9.v\s Enter");
+    match app.popups.last() {
+        Some(Popup::SweepForm { fields, .. }) => {
+            assert_eq!(fields[4], "process.compressor.pressure_ratio");
+            assert_eq!(
+                (fields[5].as_str(), fields[6].as_str()),
+                ("8.0000", "12.000")
+            );
+            assert_eq!(fields[8], "summary.thrust_net, summary.tsfc, station.9.v");
+        }
+        other => panic!("{other:?}"),
+    }
+    // Enter on a value row runs it.
+    press(&mut app, "Up Enter");
+    assert!(app.popups.is_empty(), "{:?}", app.status);
+    let sw = app.sweep.as_ref().unwrap();
+    let (p2, x2) = sw.second.clone().unwrap();
+    assert_eq!(p2, "process.compressor.pressure_ratio");
+    assert_eq!(x2.len(), 5);
+    assert_eq!(sw.rows.len(), 21 * 5);
+    // Each point equals the workbook evaluated with both givens set
+    // (independent of the sweep machinery): the last line, last point.
+    let (x, ys) = sw.rows.last().unwrap().clone();
+    let mut e = app.engine.as_ref().unwrap().clone();
+    e.set_si("process.compressor.pressure_ratio", 12.0).unwrap();
+    e.set_si("process.nozzle.cv", x).unwrap();
+    let f = e.value("summary.thrust_net").unwrap().unwrap();
+    assert!((ys[0].unwrap() - f).abs() <= 1e-9 * f.abs());
+    // The workbook is left alone.
+    assert_eq!(given_text(book(&app), PR).as_deref(), Some("10"));
+    // At 80x24 the table shows what fits and counts the columns; Right
+    // brings the velocity column into view.
+    let s = render_text(&app, 80, 24);
+    assert!(s.contains("col 1-1 of 3"), "{s}");
+    assert!(!s.contains(" v "), "{s}");
+    press(&mut app, "Right Right");
+    let s = render_text(&app, 80, 24);
+    assert!(s.contains("col 3-3 of 3"), "{s}");
+    assert!(s.contains("[m/s]"), "{s}");
+    // The chart says it is a carpet.
+    assert!(render_text(&app, 120, 40).contains("carpet"));
 }
 
 #[test]

@@ -140,6 +140,10 @@ pub enum ChooseFor {
     Shaft(usize, Vec<String>),
     /// The start screen: recent files and templates.
     Start(Vec<StartItem>),
+    /// A path for the sweep form under the chooser: its row (the varied
+    /// given, the second one, or a reported value to add), and the paths
+    /// listed.
+    SweepPath(usize, Vec<String>),
 }
 
 /// An entry of the start screen.
@@ -200,10 +204,12 @@ pub enum Popup {
         /// Selected row.
         sel: usize,
     },
-    /// Sweep set-up form: vary, from, to, steps, report.
+    /// Sweep set-up form: vary, from, to, steps; a second variable (a
+    /// carpet) with its from, to, steps; the reported values (see
+    /// [`sweep_form::ROWS`]).
     SweepForm {
         /// Field texts.
-        fields: [String; 5],
+        fields: [String; 9],
         /// Focused field.
         sel: usize,
     },
@@ -267,8 +273,11 @@ pub struct SweepData {
     pub vary: String,
     /// Paths reported.
     pub report: Vec<String>,
-    /// Rows.
+    /// Rows: for a carpet, every value of `vary` at the first value of the
+    /// second variable, then at the next.
     pub rows: Vec<sweep::Row>,
+    /// The second variable of a carpet and its values.
+    pub second: Option<(String, Vec<f64>)>,
 }
 
 /// The whole application state.
@@ -315,6 +324,8 @@ pub struct App {
     pub scans: Option<ScanBrowser>,
     /// Scroll offset of the walk text and the sweep table.
     pub scroll: u16,
+    /// First reported column of the sweep table shown (Left/Right).
+    pub sweep_col: usize,
     /// Uncertainties and explanations, computed once per workbook state
     /// and selection rather than in every frame.
     pub derived: Derived,
@@ -418,7 +429,7 @@ mod edits;
 mod files;
 mod scans;
 pub use scans::{Origin, scan_label};
-mod sweep_form;
+pub mod sweep_form;
 
 impl App {
     /// An app with settings, on the start screen.
@@ -450,6 +461,7 @@ impl App {
             quit: false,
             scans: None,
             scroll: 0,
+            sweep_col: 0,
             derived: Derived::default(),
             saved_text: None,
             mode_memory: Default::default(),
@@ -596,6 +608,14 @@ impl App {
             }
             Command::Up => self.move_sel(-1),
             Command::Down => self.move_sel(1),
+            // In the sweep view the arrows scroll the table's columns.
+            Command::Left if self.view == View::Sweep => {
+                self.sweep_col = self.sweep_col.saturating_sub(1)
+            }
+            Command::Right if self.view == View::Sweep => {
+                let n = self.sweep.as_ref().map_or(0, |s| s.report.len());
+                self.sweep_col = (self.sweep_col + 1).min(n.saturating_sub(1))
+            }
             Command::Left => self.col = self.col.saturating_sub(1),
             Command::Right => {
                 self.col = (self.col + 1).min(self.columns.keys().len().saturating_sub(1))
@@ -980,6 +1000,9 @@ impl App {
                             }
                         }
                         ChooseFor::Shaft(row, names) => self.pick_shaft(row, &names, sel),
+                        ChooseFor::SweepPath(row, paths) => {
+                            self.sweep_path_chosen(row, paths.get(sel).cloned())
+                        }
                         ChooseFor::Start(list) => {
                             let r = match list.get(sel) {
                                 Some(StartItem::File(f)) => self.open(f),
@@ -1106,45 +1129,7 @@ impl App {
                     _ => self.popups.push(Popup::Setup { sel }),
                 }
             }
-            Popup::SweepForm {
-                mut fields,
-                mut sel,
-            } => match code {
-                KeyCode::Esc => {
-                    if self.sweep.is_none() {
-                        self.view = View::Grid;
-                    }
-                }
-                KeyCode::Tab | KeyCode::Down => {
-                    sel = (sel + 1) % 5;
-                    self.popups.push(Popup::SweepForm { fields, sel });
-                }
-                KeyCode::BackTab | KeyCode::Up => {
-                    sel = (sel + 4) % 5;
-                    self.popups.push(Popup::SweepForm { fields, sel });
-                }
-                KeyCode::Enter => {
-                    if let Err(e) = self.run_sweep(&fields) {
-                        self.error(e);
-                        self.popups.push(Popup::SweepForm { fields, sel });
-                    } else {
-                        self.info("sweep done; Enter in this view changes it");
-                    }
-                }
-                KeyCode::Backspace => {
-                    fields[sel].pop();
-                    self.popups.push(Popup::SweepForm { fields, sel });
-                }
-                KeyCode::Char('u') if ctrl => {
-                    fields[sel].clear();
-                    self.popups.push(Popup::SweepForm { fields, sel });
-                }
-                KeyCode::Char(c) if !ctrl => {
-                    fields[sel].push(c);
-                    self.popups.push(Popup::SweepForm { fields, sel });
-                }
-                _ => self.popups.push(Popup::SweepForm { fields, sel }),
-            },
+            Popup::SweepForm { fields, sel } => self.sweep_form_key(fields, sel, code, ctrl),
         }
         // In the sweep view, Enter with no popup reopens the form.
     }

@@ -1134,109 +1134,183 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         );
         return;
     };
+    let sys = app.system;
     let [ca, ta] =
         Layout::horizontal([Constraint::Percentage(58), Constraint::Percentage(42)]).areas(area);
-    let qv = app
-        .book()
-        .and_then(|b| {
-            b.givens()
-                .into_iter()
-                .find(|(p, ..)| *p == sw.vary)
-                .map(|(_, q, ..)| q)
-        })
-        .unwrap_or(Quantity::Ratio);
+    let given_q = |p: &str| {
+        app.book()
+            .and_then(|b| b.given(p).map(|(q, _)| q))
+            .unwrap_or(Quantity::Ratio)
+    };
+    let qv = given_q(&sw.vary);
     let qr = present::quantity(&sw.report[0]);
-    let pts: Vec<(f64, f64)> = sw
-        .rows
-        .iter()
-        .map(|(x, ys)| {
-            (
-                present::shown(*x, qv, app.system),
-                ys[0].map_or(f64::NAN, |y| present::shown(y, qr, app.system)),
-            )
-        })
-        .collect();
-    let segs = (1..pts.len()).map(|i| (i - 1, i)).collect();
-    let mark = if th.ascii { '*' } else { '\u{25cf}' };
-    let inner_w = ca.width.saturating_sub(2) as usize;
-    let inner_h = ca.height.saturating_sub(2) as usize;
+    // The carpet's lines: one per value of the second given.
+    let seconds: Vec<Option<f64>> = match &sw.second {
+        Some((_, xs)) => xs.iter().map(|x| Some(*x)).collect(),
+        None => vec![None],
+    };
+    let n1 = sw.rows.len() / seconds.len().max(1);
+    let q2 = sw.second.as_ref().map(|(p, _)| given_q(p));
+    let mut pts = Vec::new();
+    let mut segs = Vec::new();
+    let mut labels: Vec<String> = Vec::new();
+    for (j, x2) in seconds.iter().enumerate() {
+        for (k, (x, ys)) in sw.rows.iter().skip(j * n1).take(n1).enumerate() {
+            pts.push((
+                present::shown(*x, qv, sys),
+                ys[0].map_or(f64::NAN, |y| present::shown(y, qr, sys)),
+            ));
+            if k > 0 {
+                segs.push((pts.len() - 2, pts.len() - 1));
+            }
+            // Each carpet line is labelled with its second value at its end.
+            let last = k + 1 == n1;
+            labels.push(match (x2, q2, last) {
+                (Some(v), Some(q), true) => crate::report::sig(present::shown(*v, q, sys), 3),
+                _ => String::new(),
+            });
+        }
+    }
     // A point that could not be computed is marked on the x axis.
     let failed: Vec<f64> = sw
         .rows
         .iter()
         .filter(|(_, ys)| ys[0].is_none())
-        .map(|(x, _)| present::shown(*x, qv, app.system))
+        .map(|(x, _)| present::shown(*x, qv, sys))
         .collect();
+    let mark = if th.ascii { '*' } else { '\u{25cf}' };
+    let inner_w = ca.width.saturating_sub(2) as usize;
+    let inner_h = ca.height.saturating_sub(2) as usize;
     let lines = plot::render(
         &[Series {
             segments: segs,
-            failed,
+            failed: failed.clone(),
+            labels: labels.iter().map(String::as_str).collect(),
             ..Series::points(pts, mark)
         }],
         inner_w,
         inner_h,
         th.ascii,
-        &labelled(&sw.vary, unit_label(qv, app.system)),
-        &labelled(&sw.report[0], unit_label(qr, app.system)),
+        &labelled(&sw.vary, unit_label(qv, sys)),
+        &labelled(&sw.report[0], unit_label(qr, sys)),
     );
+    let mut title = match (&sw.second, q2) {
+        (Some((p, _)), Some(q)) => format!(
+            " carpet: first reported value, a line per {} ",
+            labelled(p, unit_label(q, sys))
+        ),
+        _ => " sweep: first reported value (Enter: change) ".to_string(),
+    };
+    if !failed.is_empty() {
+        title.push_str(&format!("{} failed (x) ", failed.len()));
+    }
+    let short = match &sw.second {
+        Some((p, _)) => format!(" carpet: a line per {} ", p.rsplit('.').next().unwrap_or(p)),
+        None => " sweep ".into(),
+    };
+    let fallback = if sw.second.is_some() {
+        " carpet "
+    } else {
+        " sweep "
+    };
     f.render_widget(
         Paragraph::new(lines.into_iter().map(Line::from).collect::<Vec<_>>())
-            .block(th.block(" sweep: first reported value (Enter: change) ")),
+            .block(th.block(fit_title(&[title, short, fallback.into()], ca.width))),
         ca,
     );
-    let mut tl = Vec::new();
+    // The table: the varied value(s), then the reported values from the
+    // first one scrolled to (Left/Right) as many as fit.
     let field = |p: &str| p.rsplit('.').next().unwrap_or(p).to_string();
-    let mut head = fit(&field(&sw.vary), 10);
-    for r in &sw.report {
-        head.push_str(&fit(&field(r), 11));
-    }
-    tl.push(Line::from(Span::styled(
-        head,
-        Style::default().add_modifier(Modifier::BOLD),
-    )));
     let unit = |q: Quantity| {
-        let u = unit_label(q, app.system);
+        let u = unit_label(q, sys);
         if u.is_empty() {
             String::new()
         } else {
             format!("[{u}]")
         }
     };
-    let mut units_row = fit(&unit(qv), 10);
-    for r in &sw.report {
-        units_row.push_str(&fit(&unit(present::quantity(r)), 11));
+    let inner = ta.width.saturating_sub(2) as usize;
+    let mut lead_w = 10;
+    // Each heading keeps a blank before it (long field names are cut
+    // with ~, never run into the next).
+    let cell = |t: &str, w: usize| format!(" {}", fit(t, w - 1));
+    let mut head = cell(&field(&sw.vary), 10);
+    let mut units_row = cell(&unit(qv), 10);
+    if let (Some((p2, _)), Some(q)) = (&sw.second, q2) {
+        head.push_str(&cell(&field(p2), 10));
+        units_row.push_str(&cell(&unit(q), 10));
+        lead_w += 10;
     }
-    tl.push(Line::from(Span::styled(units_row, th.dim())));
+    let fit_n = (inner.saturating_sub(lead_w) / 11).max(1);
+    let first_col = app.sweep_col.min(sw.report.len().saturating_sub(1));
+    let cols: Vec<usize> = (first_col..sw.report.len()).take(fit_n).collect();
+    for &c in &cols {
+        head.push_str(&cell(&field(&sw.report[c]), 11));
+        units_row.push_str(&cell(&unit(present::quantity(&sw.report[c])), 11));
+    }
+    let mut tl = vec![
+        Line::from(Span::styled(
+            head,
+            Style::default().add_modifier(Modifier::BOLD),
+        )),
+        Line::from(Span::styled(units_row, th.dim())),
+    ];
     let room = (ta.height as usize).saturating_sub(4);
     if sw.rows.len() > room {
         scrolls(app, room, sw.rows.len() - room);
     }
     let first = (app.scroll as usize).min(sw.rows.len().saturating_sub(room));
-    for (x, ys) in sw.rows.iter().skip(first).take(room) {
-        let mut l = fit(
-            &crate::report::sig(present::shown(*x, qv, app.system), 5),
-            10,
-        );
-        for (r, y) in sw.report.iter().zip(ys) {
-            let q = present::quantity(r);
+    for (i, (x, ys)) in sw.rows.iter().enumerate().skip(first).take(room) {
+        let mut l = fit(&crate::report::sig(present::shown(*x, qv, sys), 5), 10);
+        if let (Some((_, xs)), Some(q)) = (&sw.second, q2) {
+            let x2 = xs.get(i / n1.max(1)).copied().unwrap_or(f64::NAN);
+            l.push_str(&fit(&crate::report::sig(present::shown(x2, q, sys), 5), 10));
+        }
+        for &c in &cols {
+            let q = present::quantity(&sw.report[c]);
             l.push_str(&fit(
-                &y.map_or("-".into(), |y| {
-                    crate::report::sig(present::shown(y, q, app.system), 5)
+                &ys.get(c).copied().flatten().map_or("-".into(), |y| {
+                    crate::report::sig(present::shown(y, q, sys), 5)
                 }),
                 11,
             ));
         }
         tl.push(Line::from(l));
     }
-    let title = if sw.rows.len() > room {
-        format!(
-            " table, rows {}-{} of {} (PgUp/PgDn) ",
+    // What is shown, counted: rows and reported columns.
+    let mut parts = Vec::new();
+    if sw.rows.len() > room {
+        parts.push(format!(
+            "rows {}-{} of {}",
             first + 1,
             (first + room).min(sw.rows.len()),
             sw.rows.len()
-        )
-    } else {
+        ));
+    }
+    if cols.len() < sw.report.len() {
+        parts.push(format!(
+            "columns {}-{} of {}",
+            first_col + 1,
+            first_col + cols.len(),
+            sw.report.len()
+        ));
+    }
+    let title = if parts.is_empty() {
         " table ".to_string()
+    } else {
+        let short: Vec<String> = parts
+            .iter()
+            .map(|p| p.replace("rows ", "").replace("columns ", "col "))
+            .collect();
+        fit_title(
+            &[
+                format!(" table, {} (PgUp/PgDn, Left/Right) ", parts.join(", ")),
+                format!(" table, {} ", parts.join(", ")),
+                format!(" {} ", parts.join(", ")),
+                format!(" {} ", short.join(", ")),
+            ],
+            ta.width,
+        )
     };
     f.render_widget(Paragraph::new(tl).block(th.block(title)), ta);
 }
@@ -1553,34 +1627,53 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             );
         }
         Popup::SweepForm { fields, sel } => {
-            let r = centered(area, 72.min(area.width), 10);
+            use super::app::sweep_form::ROWS;
+            let h = (ROWS.len() as u16 + 2).min(area.height);
+            let r = centered(area, 76.min(area.width), h);
             clear_around(f, r, area);
-            let labels = [
-                "vary (given path)",
-                "from",
-                "to",
-                "steps",
-                "report (paths, comma)",
-            ];
+            let carpet = !fields[4].trim().is_empty();
             let mut lines = Vec::new();
-            for (i, (l, v)) in labels.iter().zip(fields.iter()).enumerate() {
-                let c = if i == *sel { cursor } else { "" };
+            for (i, ((l, path), v)) in ROWS.iter().zip(fields.iter()).enumerate() {
+                // The second variable's rows are dim while there is none.
+                let idle = !carpet && (5..=7).contains(&i);
+                let c = if i == *sel && !path { cursor } else { "" };
+                let shown = if *path && v.trim().is_empty() {
+                    if i == 4 {
+                        "none (Enter picks one)"
+                    } else {
+                        "(Enter picks)"
+                    }
+                    .to_string()
+                } else {
+                    v.clone()
+                };
                 let style = if i == *sel {
                     th.sel()
+                } else if idle {
+                    th.dim()
                 } else {
                     Style::default()
                 };
-                lines.push(Line::from(Span::styled(format!("{l:<22} {v}{c}"), style)));
+                let pick = if *path { "> " } else { "  " };
+                lines.push(Line::from(Span::styled(
+                    format!("{l:<19}{pick}{shown}{c}"),
+                    style,
+                )));
             }
-            lines.push(Line::from(Span::styled(
-                "Tab/Up/Down field, Enter runs, Esc back, ctrl-u clears",
-                th.dim(),
-            )));
-            // A long path or report list wraps rather than running off.
+            // A long path or report list wraps rather than running off;
+            // the keys stay in the border.
             let (lines, more) = window(app, lines, r, None, Some(*sel));
+            let keys = fit_title(
+                &[
+                    " > rows: Enter or typing picks, Backspace removes; Enter runs ".into(),
+                    " > Enter picks; Enter runs ".into(),
+                ],
+                r.width.saturating_sub(more.chars().count() as u16 + 2),
+            );
             f.render_widget(
                 Paragraph::new(lines).block(
                     th.block(" sweep set-up ")
+                        .title_bottom(Line::from(keys).left_aligned())
                         .title_bottom(Line::from(more).right_aligned()),
                 ),
                 r,

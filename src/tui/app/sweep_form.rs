@@ -1,41 +1,96 @@
-//! The sweep set-up form and running a sweep for the chart and table.
+//! The sweep set-up form and running a sweep (or a carpet of two) for the
+//! chart and table.
+//!
+//! The varied givens and the reported values are picked from choosers
+//! (typed search over every given, or every derived value, with its value
+//! now); picking a given sets from and to around its value in the unit it
+//! is shown in. Typing on a path row opens its chooser with that search.
 
 use super::*;
 
+/// The form's rows: label, and whether it holds a path picked from a
+/// chooser (the rest are typed).
+pub const ROWS: [(&str, bool); 9] = [
+    ("vary", true),
+    ("from", false),
+    ("to", false),
+    ("steps", false),
+    ("then vary (carpet)", true),
+    ("  from", false),
+    ("  to", false),
+    ("  steps", false),
+    ("report", true),
+];
+
+/// Rows of the form.
+const VARY: usize = 0;
+const SECOND: usize = 4;
+const REPORT: usize = 8;
+
 impl App {
+    /// The value of a given in the unit it is shown in, as typed text.
+    fn shown_text(&self, si: f64, q: Quantity) -> String {
+        let u = crate::present::unit_of(q, self.system);
+        let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
+            ""
+        } else {
+            u.symbol
+        };
+        format!("{} {sym}", fmt_num(units::from_si(si, u)))
+            .trim()
+            .to_string()
+    }
+
+    /// From and to around a given's value now (80 % to 120 %), kept
+    /// inside the given's range (a coefficient of 1 sweeps 0.8 to 1).
+    fn around(&self, path: &str) -> (String, String) {
+        let Some((q, g)) = self.book().and_then(|b| b.given(path)) else {
+            return (String::new(), String::new());
+        };
+        let si = g.si();
+        let (mut lo, mut hi) = (si * 0.8, si * 1.2);
+        if hi < lo {
+            std::mem::swap(&mut lo, &mut hi);
+        }
+        let parts: Vec<&str> = path.split('.').collect();
+        let (scope, key) = (parts[0], parts.last().copied().unwrap_or(""));
+        if let Some(b) = crate::book::bounds::of(scope, key, q) {
+            lo = lo.max(b.low);
+            hi = hi.min(b.high);
+        }
+        (self.shown_text(lo, q), self.shown_text(hi, q))
+    }
+
     pub(super) fn open_sweep_form(&mut self) {
         let Some(b) = self.book() else {
             return;
         };
         // Changing a sweep starts from the one shown.
         if let Some(sw) = &self.sweep
-            && let Some((_, q, ..)) = b.givens().into_iter().find(|(p, ..)| *p == sw.vary)
+            && let Some((q, _)) = b.given(&sw.vary)
         {
-            let u = crate::present::unit_of(q, self.system);
-            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
-                ""
-            } else {
-                u.symbol
-            };
-            let end = |x: f64| {
-                format!("{} {sym}", fmt_num(units::from_si(x, u)))
-                    .trim()
-                    .to_string()
-            };
-            let (from, to) = match (sw.rows.first(), sw.rows.last()) {
-                (Some(a), Some(z)) => (end(a.0), end(z.0)),
+            let n1 = sw.rows.len() / sw.second.as_ref().map_or(1, |(_, v)| v.len().max(1));
+            let (from, to) = match (sw.rows.first(), sw.rows.get(n1.saturating_sub(1))) {
+                (Some(a), Some(z)) => (self.shown_text(a.0, q), self.shown_text(z.0, q)),
                 _ => (String::new(), String::new()),
             };
-            self.popups.push(Popup::SweepForm {
-                fields: [
-                    sw.vary.clone(),
-                    from,
-                    to,
-                    sw.rows.len().saturating_sub(1).max(1).to_string(),
-                    sw.report.join(", "),
-                ],
-                sel: 0,
-            });
+            let mut fields: [String; 9] = Default::default();
+            fields[VARY] = sw.vary.clone();
+            fields[1] = from;
+            fields[2] = to;
+            fields[3] = n1.saturating_sub(1).max(1).to_string();
+            if let Some((p, xs)) = &sw.second
+                && let Some((q2, _)) = b.given(p)
+            {
+                fields[SECOND] = p.clone();
+                fields[5] = xs
+                    .first()
+                    .map_or(String::new(), |x| self.shown_text(*x, q2));
+                fields[6] = xs.last().map_or(String::new(), |x| self.shown_text(*x, q2));
+                fields[7] = xs.len().saturating_sub(1).max(1).to_string();
+            }
+            fields[REPORT] = sw.report.join(", ");
+            self.popups.push(Popup::SweepForm { fields, sel: 0 });
             return;
         }
         let givens = b.givens();
@@ -50,20 +105,6 @@ impl App {
                 .map(|(p, ..)| p.clone())
         })
         .unwrap_or_default();
-        let cur = givens.iter().find(|(p, ..)| *p == pick);
-        let (from, to) = cur.map_or((String::new(), String::new()), |(_, q, _, si)| {
-            let u = crate::present::unit_of(*q, self.system);
-            let v = units::from_si(*si, u);
-            let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
-                ""
-            } else {
-                u.symbol
-            };
-            (
-                format!("{} {sym}", fmt_num(v * 0.8)).trim().to_string(),
-                format!("{} {sym}", fmt_num(v * 1.2)).trim().to_string(),
-            )
-        });
         let report = if self
             .engine
             .as_ref()
@@ -74,49 +115,265 @@ impl App {
             let last = b.stations.last().map_or(String::new(), |s| s.name.clone());
             format!("station.{last}.tt, station.{last}.pt")
         };
-        self.popups.push(Popup::SweepForm {
-            fields: [pick, from, to, "20".into(), report],
-            sel: 0,
-        });
+        let (from, to) = self.around(&pick);
+        let mut fields: [String; 9] = Default::default();
+        fields[VARY] = pick;
+        fields[1] = from;
+        fields[2] = to;
+        fields[3] = "20".into();
+        fields[7] = "4".into();
+        fields[REPORT] = report;
+        self.popups.push(Popup::SweepForm { fields, sel: 0 });
     }
 
-    pub(super) fn run_sweep(&mut self, fields: &[String; 5]) -> Result<(), String> {
+    /// A key in the sweep form (the form is off the stack while it runs).
+    pub(super) fn sweep_form_key(
+        &mut self,
+        mut fields: [String; 9],
+        mut sel: usize,
+        code: KeyCode,
+        ctrl: bool,
+    ) {
+        let n = ROWS.len();
+        let path_row = ROWS[sel].1;
+        match code {
+            KeyCode::Esc => {
+                if self.sweep.is_none() {
+                    self.view = View::Grid;
+                }
+            }
+            KeyCode::Tab | KeyCode::Down => {
+                sel = (sel + 1) % n;
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            KeyCode::BackTab | KeyCode::Up => {
+                sel = (sel + n - 1) % n;
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            // On a path row Enter (or typing) picks from the chooser.
+            KeyCode::Enter if path_row => {
+                self.popups.push(Popup::SweepForm { fields, sel });
+                self.open_sweep_chooser(sel, String::new());
+            }
+            KeyCode::Char(c) if path_row && !ctrl => {
+                self.popups.push(Popup::SweepForm { fields, sel });
+                self.open_sweep_chooser(sel, c.to_string());
+            }
+            // Backspace or Delete on a path row: the second variable goes,
+            // the last reported value goes.
+            KeyCode::Backspace | KeyCode::Delete if path_row => {
+                match sel {
+                    SECOND => fields[SECOND].clear(),
+                    REPORT => {
+                        let mut l: Vec<&str> = fields[REPORT].split(',').map(str::trim).collect();
+                        l.pop();
+                        fields[REPORT] = l.join(", ");
+                    }
+                    _ => self.info("the varied given is needed: Enter picks another"),
+                }
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            KeyCode::Enter => {
+                if let Err(e) = self.run_sweep(&fields) {
+                    self.error(e);
+                    self.popups.push(Popup::SweepForm { fields, sel });
+                } else {
+                    self.info("sweep done; Enter in this view changes it");
+                }
+            }
+            KeyCode::Backspace => {
+                fields[sel].pop();
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            KeyCode::Char('u') if ctrl => {
+                fields[sel].clear();
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            KeyCode::Char(c) if !ctrl => {
+                fields[sel].push(c);
+                self.popups.push(Popup::SweepForm { fields, sel });
+            }
+            _ => self.popups.push(Popup::SweepForm { fields, sel }),
+        }
+    }
+
+    /// The chooser for a path row of the form, over the form: givens (with
+    /// their value now) for the varied rows, derived values for the report.
+    fn open_sweep_chooser(&mut self, row: usize, search: String) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let mut paths = Vec::new();
+        let mut items = Vec::new();
+        if row == SECOND {
+            paths.push(String::new());
+            items.push("none (one variable)".to_string());
+        }
+        for a in e.addresses() {
+            if a.given != (row != REPORT) {
+                continue;
+            }
+            let now = a.value.map_or("-".to_string(), |v| {
+                crate::present::with_unit(v, a.quantity, self.system)
+            });
+            items.push(if a.label.is_empty() {
+                format!("{} = {now}", a.path)
+            } else {
+                format!("{} = {now}  ({})", a.path, a.label)
+            });
+            paths.push(a.path);
+        }
+        let title = match row {
+            REPORT => "add a reported value (type to search)",
+            SECOND => "second given to vary: one line per value (type to search)",
+            _ => "given to vary (type to search)",
+        };
+        let mut p = Popup::choose(title, items, ChooseFor::SweepPath(row, paths));
+        if let Popup::Choose {
+            search: s,
+            items,
+            sel,
+            ..
+        } = &mut p
+        {
+            *s = search;
+            if let Some(&first) = choose_listed(items, s).first() {
+                *sel = first;
+            }
+        }
+        self.popups.push(p);
+    }
+
+    /// A path picked for row `row` of the form under the chooser.
+    pub(super) fn sweep_path_chosen(&mut self, row: usize, path: Option<String>) {
+        let Some(path) = path else {
+            return;
+        };
+        let around = if path.is_empty() || row == REPORT {
+            None
+        } else {
+            Some(self.around(&path))
+        };
+        let Some(Popup::SweepForm { fields, sel }) = self.popups.last_mut() else {
+            return;
+        };
+        match row {
+            REPORT => {
+                let mut l: Vec<String> = fields[REPORT]
+                    .split(',')
+                    .map(|s| s.trim().to_string())
+                    .filter(|s| !s.is_empty())
+                    .collect();
+                if !l.contains(&path) {
+                    l.push(path);
+                }
+                fields[REPORT] = l.join(", ");
+            }
+            r => {
+                // From and to follow the path: its unit and its value now.
+                fields[r] = path;
+                if let Some((from, to)) = around {
+                    fields[r + 1] = from;
+                    fields[r + 2] = to;
+                    if fields[r + 3].trim().is_empty() {
+                        fields[r + 3] = if r == VARY { "20" } else { "4" }.into();
+                    }
+                } else {
+                    for f in &mut fields[r + 1..r + 3] {
+                        f.clear();
+                    }
+                }
+                *sel = r + 1;
+            }
+        }
+    }
+
+    /// Read one variable's rows of the form: path, its values (SI).
+    fn sweep_variable(&self, fields: &[String], at: usize) -> Result<(String, Vec<f64>), String> {
         let e = self.engine.as_ref().ok_or("no workbook")?;
-        let vary = fields[0].trim().to_string();
-        let (_, q, ..) = e
-            .book()
-            .givens()
-            .into_iter()
-            .find(|(p, ..)| *p == vary)
-            .ok_or(format!("no given at \"{vary}\""))?;
+        let vary = fields[at].trim().to_string();
+        let (q, _) = e.book().given(&vary).ok_or(format!(
+            "no given at \"{vary}\": Enter on the row picks one"
+        ))?;
         let baro = e
             .book()
             .barometer()
             .filter(|_| vary != crate::book::BAROMETER);
-        let from = units::parse_stated_at(&fields[1], q, "from", self.system, baro)
-            .map_err(|e| e.to_string())?
-            .si;
-        let to = units::parse_stated_at(&fields[2], q, "to", self.system, baro)
-            .map_err(|e| e.to_string())?
-            .si;
-        let steps: usize = fields[3]
+        let label = ROWS[at].0.trim();
+        let from = units::parse_stated_at(
+            &fields[at + 1],
+            q,
+            &format!("{label} from"),
+            self.system,
+            baro,
+        )
+        .map_err(|e| e.to_string())?
+        .si;
+        let to = units::parse_stated_at(
+            &fields[at + 2],
+            q,
+            &format!("{label} to"),
+            self.system,
+            baro,
+        )
+        .map_err(|e| e.to_string())?
+        .si;
+        let steps: usize = fields[at + 3]
             .trim()
             .parse()
-            .map_err(|_| "steps: a whole number".to_string())?;
+            .map_err(|_| format!("{label} steps: a whole number"))?;
         if !(1..=2000).contains(&steps) {
-            return Err("steps: 1 to 2000 in the terminal (use the sweep command for more)".into());
+            return Err(format!(
+                "{label} steps: 1 to 2000 in the terminal (use the sweep command for more)"
+            ));
         }
-        let report: Vec<String> = fields[4]
+        Ok((vary, sweep::linspace(from, to, steps)))
+    }
+
+    pub(super) fn run_sweep(&mut self, fields: &[String; 9]) -> Result<(), String> {
+        let (vary, xs) = self.sweep_variable(fields, VARY)?;
+        let second = if fields[SECOND].trim().is_empty() {
+            None
+        } else {
+            let s = self.sweep_variable(fields, SECOND)?;
+            if s.0 == vary {
+                return Err("the second variable is the first one: pick another".into());
+            }
+            if xs.len() * s.1.len() > 20_000 {
+                return Err("a carpet of more than 20000 points: fewer steps".into());
+            }
+            Some(s)
+        };
+        let report: Vec<String> = fields[REPORT]
             .split(',')
             .map(|s| s.trim().to_string())
             .filter(|s| !s.is_empty())
             .collect();
         if report.is_empty() {
-            return Err("report: at least one derived value path".into());
+            return Err("report: at least one derived value (Enter on the row adds one)".into());
         }
-        let rows = sweep::run(e, &vary, &sweep::linspace(from, to, steps), &report)
-            .map_err(|e| e.to_string())?;
-        self.sweep = Some(SweepData { vary, report, rows });
+        let e = self.engine.as_ref().ok_or("no workbook")?;
+        let rows = match &second {
+            None => sweep::run(e, &vary, &xs, &report).map_err(|e| e.to_string())?,
+            Some((p2, x2s)) => {
+                // One line of the carpet per value of the second given, on
+                // a copy of the engine.
+                let mut rows = Vec::with_capacity(xs.len() * x2s.len());
+                for &x2 in x2s {
+                    let mut e2 = e.clone();
+                    e2.set_si(p2, x2).map_err(|e| e.to_string())?;
+                    rows.extend(sweep::run(&e2, &vary, &xs, &report).map_err(|e| e.to_string())?);
+                }
+                rows
+            }
+        };
+        self.sweep = Some(SweepData {
+            vary,
+            report,
+            rows,
+            second,
+        });
+        self.sweep_col = 0;
         Ok(())
     }
 }
