@@ -625,7 +625,13 @@ fn help_lists_every_command_with_its_keys() {
     let (mut app, _) = open();
     press(&mut app, "?");
     assert!(matches!(app.popups.last(), Some(Popup::Help { .. })));
-    let screen = render_text(&app, 120, 40);
+    // Every screen of help, scrolled through.
+    let mut screen = render_text(&app, 120, 40);
+    for _ in 0..20 {
+        app.on_key(ev(KeyCode::Down, KeyModifiers::NONE));
+        screen.push_str(&render_text(&app, 120, 40));
+    }
+    press(&mut app, "Esc ?");
     for (_, name, doc, keys) in COMMANDS {
         let keys = keys.join(", ");
         let line = screen
@@ -1023,6 +1029,16 @@ fn a_carpet_is_set_up_from_the_choosers_and_its_table_scrolls_sideways() {
     assert!(s.contains("[m/s]"), "{s}");
     // The chart says it is a carpet.
     assert!(render_text(&app, 120, 40).contains("carpet"));
+}
+
+#[test]
+fn snapshot_goals() {
+    snap_all("goals", "G");
+}
+
+#[test]
+fn snapshot_goal_form() {
+    snap_all("goal_form", "G a");
 }
 
 #[test]

@@ -262,6 +262,18 @@ const STATES: &[State] = &[
         scroll: "Down",
     },
     State {
+        what: "goals",
+        keys: "G",
+        only: &["goals"],
+        scroll: "Down",
+    },
+    State {
+        what: "goal form",
+        keys: "G a",
+        only: &["new goal"],
+        scroll: "Down",
+    },
+    State {
         what: "sweep set-up",
         keys: "4",
         only: &["sweep set-up"],

@@ -716,6 +716,10 @@ pub struct Goal {
     pub low: Given,
     /// Highest value to try.
     pub high: Given,
+    /// Switched off: kept in the file, not solved (the varied given keeps
+    /// its typed value).
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub off: bool,
 }
 
 /// One given field met by [`Workbook::visit_givens`]. The path is built

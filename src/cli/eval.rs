@@ -167,6 +167,14 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
         }
     }
     for (i, g) in engine.goal_outcomes().iter().enumerate() {
+        if b.goals.get(i).is_some_and(|g| g.off) {
+            writeln!(
+                out,
+                "  goal {}: switched off (kept in the file, not solved)",
+                i + 1
+            )?;
+            continue;
+        }
         if let Some(v) = g.value {
             let goal = &b.goals[i];
             writeln!(

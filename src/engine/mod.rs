@@ -1315,6 +1315,14 @@ impl Engine {
         let goals = self.book.goals.clone();
         self.goals.clear();
         for g in &goals {
+            // A goal switched off is kept, not solved.
+            if g.off {
+                self.goals.push(GoalOutcome {
+                    value: None,
+                    problem: None,
+                });
+                continue;
+            }
             let target = g.value.si();
             let scale = target.abs().max(1e-12);
             let mut last_problem: Option<String> = None;

@@ -144,6 +144,9 @@ pub enum ChooseFor {
     /// given, the second one, or a reported value to add), and the paths
     /// listed.
     SweepPath(usize, Vec<String>),
+    /// A path for the goal form under the chooser: its row (0 varied
+    /// given, 1 target) and the paths listed.
+    GoalPath(usize, Vec<String>),
 }
 
 /// An entry of the start screen.
@@ -219,6 +222,20 @@ pub enum Popup {
         sel: usize,
         /// Only scans with flags or that cannot be used.
         flagged: bool,
+    },
+    /// The workbook's goals: add, edit, switch off and on, delete.
+    Goals {
+        /// Selected goal (the goal count: the "add" row).
+        sel: usize,
+    },
+    /// One goal's form (see [`goals::GOAL_ROWS`]).
+    GoalForm {
+        /// The goal edited (None: a new one).
+        index: Option<usize>,
+        /// Field texts: vary, target, value, low, high.
+        fields: [String; 5],
+        /// Focused field.
+        sel: usize,
     },
     /// Help overlay.
     Help {
@@ -429,6 +446,7 @@ mod edits;
 mod files;
 mod scans;
 pub use scans::{Origin, scan_label};
+pub mod goals;
 pub mod sweep_form;
 
 impl App {
@@ -741,6 +759,7 @@ impl App {
             }
             Command::ScanPrev => self.step_scan(-1),
             Command::ScanNext => self.step_scan(1),
+            Command::Goals => self.open_goals(),
             Command::ScanList => match &self.scans {
                 Some(sb) => {
                     let sel = sb.at;
@@ -1003,6 +1022,9 @@ impl App {
                         ChooseFor::SweepPath(row, paths) => {
                             self.sweep_path_chosen(row, paths.get(sel).cloned())
                         }
+                        ChooseFor::GoalPath(row, paths) => {
+                            self.goal_path_chosen(row, paths.get(sel).cloned())
+                        }
                         ChooseFor::Start(list) => {
                             let r = match list.get(sel) {
                                 Some(StartItem::File(f)) => self.open(f),
@@ -1130,6 +1152,10 @@ impl App {
                 }
             }
             Popup::SweepForm { fields, sel } => self.sweep_form_key(fields, sel, code, ctrl),
+            Popup::Goals { sel } => self.goals_key(sel, code),
+            Popup::GoalForm { index, fields, sel } => {
+                self.goal_form_key(index, fields, sel, code, ctrl)
+            }
         }
         // In the sweep view, Enter with no popup reopens the form.
     }

@@ -70,6 +70,8 @@ pub enum Command {
     ScanNext,
     /// The scan list.
     ScanList,
+    /// The goals: add, edit, switch off, delete.
+    Goals,
     /// Quit.
     Quit,
 }
@@ -202,6 +204,12 @@ pub const COMMANDS: &[(Command, &str, &str, &[&str])] = &[
         &["["],
     ),
     (Command::ScanNext, "next-scan", "show the next scan", &["]"]),
+    (
+        Command::Goals,
+        "goals",
+        "goals (vary a given to meet a value): a adds, Enter edits, Space off/on, x deletes",
+        &["G"],
+    ),
     (
         Command::ScanList,
         "list-scans",

@@ -1679,6 +1679,96 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 r,
             );
         }
+        Popup::Goals { sel } => {
+            let r = centered(area, 100.min(area.width), area.height);
+            clear_around(f, r, area);
+            let mut lines: Vec<Line<'static>> = Vec::new();
+            let goal_lines = app.goal_lines();
+            let mut keep = None;
+            for (i, l) in goal_lines.iter().enumerate() {
+                let style = if i == *sel {
+                    keep = Some(lines.len());
+                    th.sel()
+                } else if l.contains("NOT MET") {
+                    th.bad()
+                } else if l.contains("[off]") {
+                    th.dim()
+                } else {
+                    Style::default()
+                };
+                let marker = if i == *sel { "> " } else { "  " };
+                lines.push(Line::from(Span::styled(format!("{marker}{l}"), style)));
+            }
+            let add = *sel >= goal_lines.len();
+            if add {
+                keep = Some(lines.len());
+            }
+            lines.push(Line::from(Span::styled(
+                format!("{}+ add a goal", if add { "> " } else { "  " }),
+                if add { th.sel() } else { th.dim() },
+            )));
+            let (lines, more) = window(app, lines, r, None, keep);
+            let keys = fit_title(
+                &[
+                    " Enter edits, a adds, Space on/off, x deletes, Esc closes ".into(),
+                    " Enter, a, Space, x ".into(),
+                ],
+                r.width.saturating_sub(more.chars().count() as u16 + 2),
+            );
+            f.render_widget(
+                Paragraph::new(lines).block(
+                    th.block(format!(" goals ({}) ", goal_lines.len()))
+                        .title_bottom(Line::from(keys).left_aligned())
+                        .title_bottom(Line::from(more).right_aligned()),
+                ),
+                r,
+            );
+        }
+        Popup::GoalForm { index, fields, sel } => {
+            use super::app::goals::GOAL_ROWS;
+            let h = (GOAL_ROWS.len() as u16 + 2).min(area.height);
+            let r = centered(area, 76.min(area.width), h);
+            clear_around(f, r, area);
+            let mut lines = Vec::new();
+            for (i, ((l, path), v)) in GOAL_ROWS.iter().zip(fields.iter()).enumerate() {
+                let c = if i == *sel && !path { cursor } else { "" };
+                let shown = if *path && v.trim().is_empty() {
+                    "(Enter picks)".to_string()
+                } else {
+                    v.clone()
+                };
+                let pick = if *path { "> " } else { "  " };
+                let style = if i == *sel {
+                    th.sel()
+                } else {
+                    Style::default()
+                };
+                lines.push(Line::from(Span::styled(
+                    format!("{l:<9}{pick}{shown}{c}"),
+                    style,
+                )));
+            }
+            let (lines, more) = window(app, lines, r, None, Some(*sel));
+            let title = match index {
+                Some(i) => format!(" goal {} ", i + 1),
+                None => " new goal ".to_string(),
+            };
+            let keys = fit_title(
+                &[
+                    " > rows: Enter or typing picks; Enter applies; Esc back ".into(),
+                    " > Enter picks; Enter applies ".into(),
+                ],
+                r.width.saturating_sub(more.chars().count() as u16 + 2),
+            );
+            f.render_widget(
+                Paragraph::new(lines).block(
+                    th.block(title)
+                        .title_bottom(Line::from(keys).left_aligned())
+                        .title_bottom(Line::from(more).right_aligned()),
+                ),
+                r,
+            );
+        }
         Popup::ScanList { sel, flagged } => {
             let Some(sb) = &app.scans else {
                 return;

@@ -116,7 +116,7 @@ impl App {
             };
         }
         let varied = b.given(path).is_some_and(|(_, g)| g.is_varied());
-        if let Some(k) = b.goals.iter().position(|g| g.vary == path) {
+        if let Some(k) = b.goals.iter().position(|g| g.vary == path && !g.off) {
             if self.engine.as_ref().is_some_and(|e| e.withheld().is_some()) {
                 return Origin::Withheld(format!("goal {} not solved: values withheld", k + 1));
             }
