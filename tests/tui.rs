@@ -1042,6 +1042,13 @@ fn snapshot_goal_form() {
 }
 
 #[test]
+fn snapshot_channels() {
+    let to_map = format!("g {} Enter", vec!["Down"; 20].join(" "));
+    snap_all("channels", &to_map);
+    snap_all("channel_form", &format!("{to_map} Enter"));
+}
+
+#[test]
 fn snapshot_confirm_quit() {
     snap_all("confirm", &format!("{TO_PR} Enter ctrl-u 1 1 Enter q"));
 }

@@ -147,6 +147,8 @@ pub enum ChooseFor {
     /// A path for the goal form under the chooser: its row (0 varied
     /// given, 1 target) and the paths listed.
     GoalPath(usize, Vec<String>),
+    /// The given a channel feeds, for the channel form under the chooser.
+    ChannelGiven(Vec<String>),
 }
 
 /// An entry of the start screen.
@@ -234,6 +236,20 @@ pub enum Popup {
         index: Option<usize>,
         /// Field texts: vary, target, value, low, high.
         fields: [String; 5],
+        /// Focused field.
+        sel: usize,
+    },
+    /// The channel map: the barometer and the channels feeding givens.
+    Channels {
+        /// Selected line (channels, then the "add" rows).
+        sel: usize,
+    },
+    /// One channel's form (see [`channels::CHANNEL_ROWS`]).
+    ChannelForm {
+        /// The channel edited.
+        at: channels::ChannelAt,
+        /// Field texts: given, columns, unit, weights, systematic, random.
+        fields: [String; 6],
         /// Focused field.
         sel: usize,
     },
@@ -446,6 +462,7 @@ mod edits;
 mod files;
 mod scans;
 pub use scans::{Origin, scan_label};
+pub mod channels;
 pub mod goals;
 pub mod sweep_form;
 
@@ -1025,6 +1042,9 @@ impl App {
                         ChooseFor::GoalPath(row, paths) => {
                             self.goal_path_chosen(row, paths.get(sel).cloned())
                         }
+                        ChooseFor::ChannelGiven(paths) => {
+                            self.channel_given_chosen(paths.get(sel).cloned())
+                        }
                         ChooseFor::Start(list) => {
                             let r = match list.get(sel) {
                                 Some(StartItem::File(f)) => self.open(f),
@@ -1126,6 +1146,10 @@ impl App {
                                     });
                                 }
                             }
+                            Some(SetupRow::Goals) => self.open_goals(),
+                            Some(SetupRow::Channels) => {
+                                self.popups.push(Popup::Channels { sel: 0 })
+                            }
                             Some(SetupRow::Title) => {
                                 let t = self.book().map_or(String::new(), |b| b.title.clone());
                                 self.popups.push(Popup::Text {
@@ -1153,6 +1177,10 @@ impl App {
             }
             Popup::SweepForm { fields, sel } => self.sweep_form_key(fields, sel, code, ctrl),
             Popup::Goals { sel } => self.goals_key(sel, code),
+            Popup::Channels { sel } => self.channels_key(sel, code),
+            Popup::ChannelForm { at, fields, sel } => {
+                self.channel_form_key(at, fields, sel, code, ctrl)
+            }
             Popup::GoalForm { index, fields, sel } => {
                 self.goal_form_key(index, fields, sel, code, ctrl)
             }
@@ -1261,6 +1289,8 @@ impl App {
                 }
             }
             rows.push(SetupRow::KeepResults);
+            rows.push(SetupRow::Goals);
+            rows.push(SetupRow::Channels);
         }
         rows
     }
@@ -1319,7 +1349,11 @@ impl App {
                     "results will not be stored"
                 }
             }
-            SetupRow::Given(_) | SetupRow::Title | SetupRow::Note => return,
+            SetupRow::Given(_)
+            | SetupRow::Title
+            | SetupRow::Note
+            | SetupRow::Goals
+            | SetupRow::Channels => return,
         };
         if let Err(e) = nb.resolve() {
             self.error(crate::present::join(&e));
@@ -1346,6 +1380,10 @@ pub enum SetupRow {
     Gas,
     /// Store results in the file.
     KeepResults,
+    /// The goals (Enter lists them).
+    Goals,
+    /// The channel map (Enter lists it).
+    Channels,
     /// A given.
     Given(String),
 }

@@ -1407,8 +1407,109 @@ fn centered(area: Rect, w: u16, h: u16) -> Rect {
     }
 }
 
-fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
+/// A form popup: one row per field (`>` marks a row picked from a
+/// chooser), the focused one reversed with the cursor on typed rows, the
+/// keys in the bottom border. `idle` rows are dim (not in use).
+#[allow(clippy::too_many_arguments)]
+fn draw_form(
+    f: &mut Frame,
+    app: &App,
+    th: &Theme,
+    area: Rect,
+    title: String,
+    rows: &[(&str, bool)],
+    fields: &[String],
+    sel: usize,
+    idle: &dyn Fn(usize) -> bool,
+    keys: [&str; 2],
+) {
     let cursor = if th.ascii { "_" } else { "\u{2588}" };
+    let label_w = rows
+        .iter()
+        .map(|(l, _)| l.chars().count())
+        .max()
+        .unwrap_or(0)
+        + 1;
+    let h = (rows.len() as u16 + 2).min(area.height);
+    let r = centered(area, 76.min(area.width), h);
+    clear_around(f, r, area);
+    let mut lines = Vec::new();
+    for (i, ((l, path), v)) in rows.iter().zip(fields.iter()).enumerate() {
+        let c = if i == sel && !path { cursor } else { "" };
+        let shown = if *path && v.trim().is_empty() {
+            "(Enter picks)".to_string()
+        } else {
+            v.clone()
+        };
+        let style = if i == sel {
+            th.sel()
+        } else if idle(i) {
+            th.dim()
+        } else {
+            Style::default()
+        };
+        let pick = if *path { "> " } else { "  " };
+        lines.push(Line::from(Span::styled(
+            format!("{l:<label_w$}{pick}{shown}{c}"),
+            style,
+        )));
+    }
+    // A long path or list wraps rather than running off; the keys stay in
+    // the border.
+    let (lines, more) = window(app, lines, r, None, Some(sel));
+    let keys = fit_title(
+        &[keys[0].to_string(), keys[1].to_string()],
+        r.width.saturating_sub(more.chars().count() as u16 + 2),
+    );
+    f.render_widget(
+        Paragraph::new(lines).block(
+            th.block(title)
+                .title_bottom(Line::from(keys).left_aligned())
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
+        r,
+    );
+}
+
+/// A list popup over the whole body: lines with a selection (`>` and
+/// reversed), an optional style per line, keys in the bottom border.
+fn draw_list(
+    f: &mut Frame,
+    app: &App,
+    th: &Theme,
+    area: Rect,
+    title: String,
+    lines_in: Vec<(String, Style)>,
+    sel: usize,
+    keys: [&str; 2],
+) {
+    let r = centered(area, 100.min(area.width), area.height);
+    clear_around(f, r, area);
+    let mut lines = Vec::new();
+    for (i, (l, style)) in lines_in.into_iter().enumerate() {
+        let (marker, style) = if i == sel {
+            ("> ", th.sel())
+        } else {
+            ("  ", style)
+        };
+        lines.push(Line::from(Span::styled(format!("{marker}{l}"), style)));
+    }
+    let (lines, more) = window(app, lines, r, None, Some(sel));
+    let keys = fit_title(
+        &[keys[0].to_string(), keys[1].to_string()],
+        r.width.saturating_sub(more.chars().count() as u16 + 2),
+    );
+    f.render_widget(
+        Paragraph::new(lines).block(
+            th.block(title)
+                .title_bottom(Line::from(keys).left_aligned())
+                .title_bottom(Line::from(more).right_aligned()),
+        ),
+        r,
+    );
+}
+
+fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
     match p {
         Popup::Edit {
             path,
@@ -1550,9 +1651,6 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
         }
         Popup::Setup { sel } => {
             let rows = app.setup_rows();
-            let h = (rows.len() as u16 + 3).min(area.height);
-            let r = centered(area, 70.min(area.width), h);
-            clear_around(f, r, area);
             let b = app.book();
             let mut lines = Vec::new();
             let mut keep = None;
@@ -1597,6 +1695,21 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                         "store results    : {}",
                         if b.keep_results { "yes" } else { "no" }
                     ),
+                    (SetupRow::Goals, Some(b)) => {
+                        format!("goals            : {} (Enter lists)", b.goals.len())
+                    }
+                    (SetupRow::Channels, Some(b)) => format!(
+                        "channel map      : {} (Enter lists)",
+                        b.channels.as_ref().map_or("none".to_string(), |c| format!(
+                            "{} channel(s){}",
+                            c.map.len(),
+                            if c.barometer.is_some() {
+                                " and a barometer"
+                            } else {
+                                ""
+                            }
+                        ))
+                    ),
                     (SetupRow::Given(p), _) => match given_line(app, p) {
                         Some((field, val)) => format!("  {field:<15}= {val}"),
                         None => continue,
@@ -1614,8 +1727,21 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 };
                 lines.push(Line::from(Span::styled(format!("{marker}{text}"), style)));
             }
-            // Long titles and notes wrap; a list longer than the popup
-            // follows the selection and says which lines are shown.
+            // As high as the lines need once wrapped (long titles and
+            // notes); a list longer than the screen follows the selection
+            // and says which lines are shown.
+            let w = 70.min(area.width);
+            let inner = w.saturating_sub(2).max(1) as usize;
+            let wrapped: usize = lines
+                .iter()
+                .map(|l| {
+                    let n: usize = l.spans.iter().map(|s| s.content.chars().count()).sum();
+                    n.div_ceil(inner).max(1) + usize::from(n > inner)
+                })
+                .sum();
+            let h = (wrapped as u16 + 2).min(area.height);
+            let r = centered(area, w, h);
+            clear_around(f, r, area);
             let (lines, more) = window(app, lines, r, None, keep);
             f.render_widget(
                 Paragraph::new(lines).block(
@@ -1627,146 +1753,132 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
             );
         }
         Popup::SweepForm { fields, sel } => {
-            use super::app::sweep_form::ROWS;
-            let h = (ROWS.len() as u16 + 2).min(area.height);
-            let r = centered(area, 76.min(area.width), h);
-            clear_around(f, r, area);
             let carpet = !fields[4].trim().is_empty();
-            let mut lines = Vec::new();
-            for (i, ((l, path), v)) in ROWS.iter().zip(fields.iter()).enumerate() {
-                // The second variable's rows are dim while there is none.
-                let idle = !carpet && (5..=7).contains(&i);
-                let c = if i == *sel && !path { cursor } else { "" };
-                let shown = if *path && v.trim().is_empty() {
-                    if i == 4 {
-                        "none (Enter picks one)"
-                    } else {
-                        "(Enter picks)"
-                    }
-                    .to_string()
-                } else {
-                    v.clone()
-                };
-                let style = if i == *sel {
-                    th.sel()
-                } else if idle {
-                    th.dim()
-                } else {
-                    Style::default()
-                };
-                let pick = if *path { "> " } else { "  " };
-                lines.push(Line::from(Span::styled(
-                    format!("{l:<19}{pick}{shown}{c}"),
-                    style,
-                )));
+            let mut shown = fields.clone();
+            if !carpet {
+                shown[4] = "none (Enter picks one)".into();
             }
-            // A long path or report list wraps rather than running off;
-            // the keys stay in the border.
-            let (lines, more) = window(app, lines, r, None, Some(*sel));
-            let keys = fit_title(
-                &[
-                    " > rows: Enter or typing picks, Backspace removes; Enter runs ".into(),
-                    " > Enter picks; Enter runs ".into(),
+            draw_form(
+                f,
+                app,
+                th,
+                area,
+                " sweep set-up ".into(),
+                &super::app::sweep_form::ROWS,
+                &shown,
+                *sel,
+                // The second variable's rows are dim while there is none.
+                &|i| !carpet && (5..=7).contains(&i),
+                [
+                    " > rows: Enter or typing picks, Backspace removes; Enter runs ",
+                    " > Enter picks; Enter runs ",
                 ],
-                r.width.saturating_sub(more.chars().count() as u16 + 2),
-            );
-            f.render_widget(
-                Paragraph::new(lines).block(
-                    th.block(" sweep set-up ")
-                        .title_bottom(Line::from(keys).left_aligned())
-                        .title_bottom(Line::from(more).right_aligned()),
-                ),
-                r,
             );
         }
         Popup::Goals { sel } => {
-            let r = centered(area, 100.min(area.width), area.height);
-            clear_around(f, r, area);
-            let mut lines: Vec<Line<'static>> = Vec::new();
             let goal_lines = app.goal_lines();
-            let mut keep = None;
-            for (i, l) in goal_lines.iter().enumerate() {
-                let style = if i == *sel {
-                    keep = Some(lines.len());
-                    th.sel()
-                } else if l.contains("NOT MET") {
-                    th.bad()
-                } else if l.contains("[off]") {
-                    th.dim()
-                } else {
-                    Style::default()
-                };
-                let marker = if i == *sel { "> " } else { "  " };
-                lines.push(Line::from(Span::styled(format!("{marker}{l}"), style)));
-            }
-            let add = *sel >= goal_lines.len();
-            if add {
-                keep = Some(lines.len());
-            }
-            lines.push(Line::from(Span::styled(
-                format!("{}+ add a goal", if add { "> " } else { "  " }),
-                if add { th.sel() } else { th.dim() },
-            )));
-            let (lines, more) = window(app, lines, r, None, keep);
-            let keys = fit_title(
-                &[
-                    " Enter edits, a adds, Space on/off, x deletes, Esc closes ".into(),
-                    " Enter, a, Space, x ".into(),
+            let n = goal_lines.len();
+            let mut items: Vec<(String, Style)> = goal_lines
+                .into_iter()
+                .map(|l| {
+                    let style = if l.contains("NOT MET") {
+                        th.bad()
+                    } else if l.contains("[off]") {
+                        th.dim()
+                    } else {
+                        Style::default()
+                    };
+                    (l, style)
+                })
+                .collect();
+            items.push(("+ add a goal".into(), th.dim()));
+            draw_list(
+                f,
+                app,
+                th,
+                area,
+                format!(" goals ({n}) "),
+                items,
+                *sel,
+                [
+                    " Enter edits, a adds, Space on/off, x deletes, Esc closes ",
+                    " Enter, a, Space, x ",
                 ],
-                r.width.saturating_sub(more.chars().count() as u16 + 2),
-            );
-            f.render_widget(
-                Paragraph::new(lines).block(
-                    th.block(format!(" goals ({}) ", goal_lines.len()))
-                        .title_bottom(Line::from(keys).left_aligned())
-                        .title_bottom(Line::from(more).right_aligned()),
-                ),
-                r,
             );
         }
         Popup::GoalForm { index, fields, sel } => {
-            use super::app::goals::GOAL_ROWS;
-            let h = (GOAL_ROWS.len() as u16 + 2).min(area.height);
-            let r = centered(area, 76.min(area.width), h);
-            clear_around(f, r, area);
-            let mut lines = Vec::new();
-            for (i, ((l, path), v)) in GOAL_ROWS.iter().zip(fields.iter()).enumerate() {
-                let c = if i == *sel && !path { cursor } else { "" };
-                let shown = if *path && v.trim().is_empty() {
-                    "(Enter picks)".to_string()
-                } else {
-                    v.clone()
-                };
-                let pick = if *path { "> " } else { "  " };
-                let style = if i == *sel {
-                    th.sel()
-                } else {
-                    Style::default()
-                };
-                lines.push(Line::from(Span::styled(
-                    format!("{l:<9}{pick}{shown}{c}"),
-                    style,
-                )));
-            }
-            let (lines, more) = window(app, lines, r, None, Some(*sel));
             let title = match index {
                 Some(i) => format!(" goal {} ", i + 1),
                 None => " new goal ".to_string(),
             };
-            let keys = fit_title(
-                &[
-                    " > rows: Enter or typing picks; Enter applies; Esc back ".into(),
-                    " > Enter picks; Enter applies ".into(),
+            draw_form(
+                f,
+                app,
+                th,
+                area,
+                title,
+                &super::app::goals::GOAL_ROWS,
+                fields,
+                *sel,
+                &|_| false,
+                [
+                    " > rows: Enter or typing picks; Enter applies; Esc back ",
+                    " > Enter picks; Enter applies ",
                 ],
-                r.width.saturating_sub(more.chars().count() as u16 + 2),
             );
-            f.render_widget(
-                Paragraph::new(lines).block(
-                    th.block(title)
-                        .title_bottom(Line::from(keys).left_aligned())
-                        .title_bottom(Line::from(more).right_aligned()),
-                ),
-                r,
+        }
+        Popup::Channels { sel } => {
+            let mut items: Vec<(String, Style)> = app
+                .channel_lines()
+                .into_iter()
+                .map(|(_, l)| (l, Style::default()))
+                .collect();
+            let n = items.len();
+            items.extend(
+                app.channel_adds()
+                    .into_iter()
+                    .map(|(_, l)| (l.to_string(), th.dim())),
+            );
+            draw_list(
+                f,
+                app,
+                th,
+                area,
+                format!(" channel map ({n}) "),
+                items,
+                *sel,
+                [
+                    " Enter edits, a adds, x deletes, Esc closes ",
+                    " Enter, a, x ",
+                ],
+            );
+        }
+        Popup::ChannelForm { at, fields, sel } => {
+            use super::app::channels::ChannelAt;
+            let title = match at {
+                ChannelAt::Barometer => " barometer channel ".to_string(),
+                ChannelAt::Map(Some(i)) => format!(" channel {} ", i + 1),
+                ChannelAt::Map(None) => " new channel ".to_string(),
+            };
+            let baro = *at == ChannelAt::Barometer;
+            let mut shown = fields.clone();
+            if baro {
+                shown[0] = "(the barometer: every gauge reading)".into();
+            }
+            draw_form(
+                f,
+                app,
+                th,
+                area,
+                title,
+                &super::app::channels::CHANNEL_ROWS,
+                &shown,
+                *sel,
+                &|i| baro && i == 0,
+                [
+                    " columns, weights: comma separated; u: unit or %; Enter applies ",
+                    " Enter applies; Esc back ",
+                ],
             );
         }
         Popup::ScanList { sel, flagged } => {
