@@ -1473,6 +1473,7 @@ fn draw_form(
 
 /// A list popup over the whole body: lines with a selection (`>` and
 /// reversed), an optional style per line, keys in the bottom border.
+#[allow(clippy::too_many_arguments)]
 fn draw_list(
     f: &mut Frame,
     app: &App,
