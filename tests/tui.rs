@@ -411,6 +411,65 @@ fn delete_a_station_then_undo() {
     assert_eq!(station_names(&app), ORIGINAL);
 }
 
+/// Every kind of edit the keyboard can make, each undone by one `z` to the
+/// file's exact text (and redone by `Z`); the workbook text is the
+/// independent record (what a save would write).
+#[test]
+fn every_edit_is_undone_by_one_z() {
+    let edits: &[(&str, &str)] = &[
+        ("a given", &format!("{TO_PR} Enter ctrl-u 1 1 Enter")),
+        ("a station renamed", "j j r ctrl-u text:3a Enter"),
+        ("a process renamed", "j j Tab r ctrl-u text:hpc Enter"),
+        ("a station inserted", "j j a text:2a Enter"),
+        ("a station deleted", "j j x"),
+        ("a kind changed", "j j K Enter"),
+        ("a mode changed", "j j m Down Enter"),
+        ("the static state", "j j Tab Enter Down Enter"),
+        ("the branch", "j j Tab j Enter"),
+        ("a shaft offtake added", "j j Tab j j j j j j Enter"),
+        ("the title", "g Enter ctrl-u text:rig\\sday Enter"),
+        ("the note", "g j Enter ctrl-u text:scan\\s7 Enter"),
+        ("the ambient condition", "g j j Enter"),
+        (
+            "an ambient given",
+            "g j j j Enter ctrl-u text:100\\sm Enter",
+        ),
+        ("the gas model", "g j j j j j j j Enter"),
+        (
+            "a goal added",
+            "G a Enter text:freestream.w Enter Enter text:thrust_net Enter Enter",
+        ),
+    ];
+    for (what, keys) in edits {
+        let (mut app, _) = open();
+        let before = format::to_text(book(&app));
+        press(&mut app, keys);
+        // Close whatever popup the edit leaves open (the set-up, the goal
+        // list) so that z reaches the workbook.
+        while !app.popups.is_empty() {
+            press(&mut app, "Esc");
+        }
+        let after = format::to_text(book(&app));
+        assert_ne!(
+            before, after,
+            "{what}: the keys changed nothing ({:?})",
+            app.status
+        );
+        press(&mut app, "z");
+        assert_eq!(
+            format::to_text(book(&app)),
+            before,
+            "{what}: z did not undo it"
+        );
+        press(&mut app, "Z");
+        assert_eq!(
+            format::to_text(book(&app)),
+            after,
+            "{what}: Z did not redo it"
+        );
+    }
+}
+
 #[test]
 fn change_mode_then_undo() {
     let (mut app, _) = open();
