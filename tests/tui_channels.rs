@@ -12,51 +12,22 @@
 //! (1 a + 2 b) / 3.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
-use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
+mod common;
+
+use common::{copy_demo, press};
 use stationwise::tui::app::{App, Popup};
 use stationwise::tui::settings::Settings;
-use std::path::Path;
 
 const PSI: f64 = 0.453_592_37 * 9.806_65 / (0.0254 * 0.0254);
 
-fn press(app: &mut App, keys: &str) {
-    for tok in keys.split_whitespace() {
-        if let Some(t) = tok.strip_prefix("text:") {
-            for c in t.replace("\\s", " ").chars() {
-                app.on_key(KeyEvent::new(KeyCode::Char(c), KeyModifiers::NONE));
-            }
-            continue;
-        }
-        let code = match tok {
-            "Enter" => KeyCode::Enter,
-            "Esc" => KeyCode::Esc,
-            "Tab" => KeyCode::Tab,
-            "Down" => KeyCode::Down,
-            "Up" => KeyCode::Up,
-            "Backspace" => KeyCode::Backspace,
-            t if t.chars().count() == 1 => KeyCode::Char(t.chars().next().unwrap()),
-            t => panic!("key {t}"),
-        };
-        app.on_key(KeyEvent::new(code, KeyModifiers::NONE));
-    }
-}
-
 #[test]
 fn a_channel_is_added_refused_without_a_barometer_then_reduces_a_scan() {
-    let dir = std::env::temp_dir().join(format!("stationwise-channels-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("rig.ron");
-    std::fs::copy(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("sheets/compressor-rig.ron"),
-        &path,
-    )
-    .unwrap();
+    let copy = copy_demo("compressor-rig.ron", "channels");
     let mut app = App::new(Settings::default());
-    app.open(&path).unwrap();
+    app.open(&copy.path).unwrap();
     assert!(app.book().unwrap().channels.is_none());
     // g, then the channel map row (the last), Enter lists it.
-    app.on_key(KeyEvent::new(KeyCode::Char('g'), KeyModifiers::NONE));
+    press(&mut app, "g");
     for _ in 0..30 {
         press(&mut app, "Down");
     }
@@ -99,7 +70,7 @@ fn a_channel_is_added_refused_without_a_barometer_then_reduces_a_scan() {
     assert_eq!(ch.map[0].weights, vec![1.0, 2.0]);
     assert_eq!(ch.map[0].random.as_deref(), Some("0.5 %"));
     // A scan through the map: barometer 100 kPa, probes 40 and 43 psig.
-    let scans = dir.join("scans.csv");
+    let scans = copy.path.with_file_name("scans.csv");
     std::fs::write(&scans, "BARO,P2A,P2B\n100,40,43\n").unwrap();
     press(&mut app, "Esc Esc");
     app.load_scans(&scans).unwrap();
@@ -120,5 +91,4 @@ fn a_channel_is_added_refused_without_a_barometer_then_reduces_a_scan() {
     );
     press(&mut app, "z");
     assert!(app.book().unwrap().channels.is_none());
-    let _ = std::fs::remove_dir_all(&dir);
 }

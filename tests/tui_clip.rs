@@ -11,69 +11,23 @@
 //! kept by hand.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
-use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
+mod common;
+
+use common::{Copy, copy_demo, press};
 use ratatui::buffer::Buffer;
 use stationwise::tui::app::App;
 use stationwise::tui::render_buffer;
 use stationwise::tui::settings::Settings;
 use std::collections::BTreeSet;
-use std::path::{Path, PathBuf};
 
 const BIG: (u16, u16) = (240, 100);
 
-fn key(tok: &str) -> KeyEvent {
-    let none = KeyModifiers::NONE;
-    let code = match tok {
-        "Enter" => KeyCode::Enter,
-        "Esc" => KeyCode::Esc,
-        "Tab" => KeyCode::Tab,
-        "Down" => KeyCode::Down,
-        "Up" => KeyCode::Up,
-        "Right" => KeyCode::Right,
-        "PageDown" => KeyCode::PageDown,
-        t if t.chars().count() == 1 => {
-            let c = t.chars().next().unwrap();
-            let m = if c.is_ascii_uppercase() {
-                KeyModifiers::SHIFT
-            } else {
-                none
-            };
-            return KeyEvent::new(KeyCode::Char(c), m);
-        }
-        t => panic!("unknown key {t}"),
-    };
-    KeyEvent::new(code, none)
-}
-
-fn press(app: &mut App, keys: &str) {
-    for t in keys.split_whitespace() {
-        app.on_key(key(t));
-    }
-}
-
-/// A demo sheet copied to a folder of its own (edits never touch sheets/).
-struct Copy(PathBuf);
-
-impl Drop for Copy {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
-}
-
 fn open(sheet: &str, tag: &str) -> (App, Copy) {
-    let dir = std::env::temp_dir().join(format!(
-        "stationwise-clip-{}-{sheet}-{tag}",
-        std::process::id()
-    ));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("sheets");
-    let path = dir.join(sheet);
-    std::fs::copy(src.join(sheet), &path).unwrap();
+    let copy = copy_demo(sheet, &format!("clip-{tag}"));
     let mut app = App::new(Settings::default());
-    app.open(&path).unwrap();
+    app.open(&copy.path).unwrap();
     app.status = None;
-    (app, Copy(dir))
+    (app, copy)
 }
 
 /// A bordered block on screen: its top and bottom border text and the

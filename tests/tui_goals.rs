@@ -8,46 +8,12 @@
 //! without the goal.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
-use crossterm::event::{KeyCode, KeyEvent, KeyModifiers};
+mod common;
+
+use common::{copy_demo, press};
 use stationwise::format;
 use stationwise::tui::app::{App, Popup};
 use stationwise::tui::settings::Settings;
-use std::path::Path;
-
-fn press(app: &mut App, keys: &str) {
-    for tok in keys.split_whitespace() {
-        if let Some(t) = tok.strip_prefix("text:") {
-            for c in t.chars() {
-                app.on_key(KeyEvent::new(KeyCode::Char(c), KeyModifiers::NONE));
-            }
-            continue;
-        }
-        let code = match tok {
-            "Enter" => KeyCode::Enter,
-            "Esc" => KeyCode::Esc,
-            "Tab" => KeyCode::Tab,
-            "Down" => KeyCode::Down,
-            "Up" => KeyCode::Up,
-            "Space" => KeyCode::Char(' '),
-            "ctrl-u" => {
-                app.on_key(KeyEvent::new(KeyCode::Char('u'), KeyModifiers::CONTROL));
-                continue;
-            }
-            t if t.chars().count() == 1 => {
-                let c = t.chars().next().unwrap();
-                let m = if c.is_ascii_uppercase() {
-                    KeyModifiers::SHIFT
-                } else {
-                    KeyModifiers::NONE
-                };
-                app.on_key(KeyEvent::new(KeyCode::Char(c), m));
-                continue;
-            }
-            t => panic!("key {t}"),
-        };
-        app.on_key(KeyEvent::new(code, KeyModifiers::NONE));
-    }
-}
 
 fn value(app: &App, path: &str) -> f64 {
     app.engine.as_ref().unwrap().value(path).unwrap().unwrap()
@@ -55,17 +21,9 @@ fn value(app: &App, path: &str) -> f64 {
 
 #[test]
 fn a_goal_is_added_solved_switched_off_and_deleted_each_undoable() {
-    let dir = std::env::temp_dir().join(format!("stationwise-goals-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("turbojet.ron");
-    std::fs::copy(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("sheets/turbojet.ron"),
-        &path,
-    )
-    .unwrap();
+    let copy = copy_demo("turbojet.ron", "goals");
     let mut app = App::new(Settings::default());
-    app.open(&path).unwrap();
+    app.open(&copy.path).unwrap();
     let thrust0 = value(&app, "summary.thrust_net");
     let w0 = value(&app, "station.0.w");
 
@@ -96,7 +54,7 @@ fn a_goal_is_added_solved_switched_off_and_deleted_each_undoable() {
     press(&mut app, "ctrl-u text:lots Enter");
     assert!(matches!(app.popups.last(), Some(Popup::GoalForm { .. })));
     assert!(app.status.as_ref().unwrap().1, "{:?}", app.status);
-    press(&mut app, "ctrl-u text:20 Space text:kN Enter");
+    press(&mut app, r"ctrl-u text:20\skN Enter");
     assert!(
         matches!(app.popups.last(), Some(Popup::Goals { .. })),
         "{:?}",
@@ -146,7 +104,6 @@ fn a_goal_is_added_solved_switched_off_and_deleted_each_undoable() {
         }
         other => panic!("{other:?}"),
     }
-    press(&mut app, "Down Down ctrl-u text:18 Space text:kN Enter");
+    press(&mut app, r"Down Down ctrl-u text:18\skN Enter");
     assert!((value(&app, "summary.thrust_net") - 18e3).abs() < 1e-6 * 18e3);
-    let _ = std::fs::remove_dir_all(&dir);
 }

@@ -463,6 +463,7 @@ mod files;
 mod scans;
 pub use scans::{Origin, scan_label};
 pub mod channels;
+mod forms;
 pub mod goals;
 pub mod sweep_form;
 

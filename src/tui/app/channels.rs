@@ -221,19 +221,10 @@ impl App {
                     back(self, fields, sel);
                 }
             }
-            KeyCode::Backspace => {
-                fields[sel].pop();
+            _ => {
+                forms::type_into(&mut fields[sel], code, ctrl);
                 back(self, fields, sel);
             }
-            KeyCode::Char('u') if ctrl => {
-                fields[sel].clear();
-                back(self, fields, sel);
-            }
-            KeyCode::Char(c) if !ctrl => {
-                fields[sel].push(c);
-                back(self, fields, sel);
-            }
-            _ => back(self, fields, sel),
         }
     }
 
@@ -253,24 +244,12 @@ impl App {
             ));
             paths.push(p);
         }
-        let mut p = Popup::choose(
+        self.push_chooser(
             "given the channel feeds (type to search)",
             items,
             ChooseFor::ChannelGiven(paths),
+            search,
         );
-        if let Popup::Choose {
-            search: s,
-            items,
-            sel,
-            ..
-        } = &mut p
-        {
-            *s = search;
-            if let Some(&first) = choose_listed(items, s).first() {
-                *sel = first;
-            }
-        }
-        self.popups.push(p);
     }
 
     /// A given picked for the channel form under the chooser; an empty

@@ -123,19 +123,6 @@ impl App {
         }
     }
 
-    /// The text of a value in the unit it is shown in.
-    fn goal_text(&self, si: f64, q: Quantity) -> String {
-        let u = crate::present::unit_of(q, self.system);
-        let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
-            ""
-        } else {
-            u.symbol
-        };
-        format!("{} {sym}", fmt_num(units::from_si(si, u)))
-            .trim()
-            .to_string()
-    }
-
     /// The form for goal `index` (None: a new goal).
     pub(super) fn open_goal_form(&mut self, index: Option<usize>) {
         let Some(b) = self.book() else {
@@ -163,7 +150,7 @@ impl App {
         &mut self,
         index: Option<usize>,
         mut fields: [String; 5],
-        mut sel: usize,
+        sel: usize,
         code: KeyCode,
         ctrl: bool,
     ) {
@@ -191,63 +178,22 @@ impl App {
                     back(self, fields, sel);
                 }
             },
-            KeyCode::Backspace => {
-                fields[sel].pop();
+            _ => {
+                forms::type_into(&mut fields[sel], code, ctrl);
                 back(self, fields, sel);
             }
-            KeyCode::Char('u') if ctrl => {
-                fields[sel].clear();
-                back(self, fields, sel);
-            }
-            KeyCode::Char(c) if !ctrl => {
-                fields[sel].push(c);
-                sel = sel.min(n - 1);
-                back(self, fields, sel);
-            }
-            _ => back(self, fields, sel),
         }
     }
 
     fn open_goal_chooser(&mut self, row: usize, search: String) {
-        let Some(e) = self.engine.as_ref() else {
-            return;
-        };
-        let mut paths = Vec::new();
-        let mut items = Vec::new();
-        for a in e.addresses() {
-            // The varied row lists givens, the target row derived values.
-            if a.given != (row == 0) {
-                continue;
-            }
-            let now = a.value.map_or("-".to_string(), |v| {
-                crate::present::with_unit(v, a.quantity, self.system)
-            });
-            items.push(if a.label.is_empty() {
-                format!("{} = {now}", a.path)
-            } else {
-                format!("{} = {now}  ({})", a.path, a.label)
-            });
-            paths.push(a.path);
-        }
+        // The varied row lists givens, the target row derived values.
+        let (items, paths) = self.address_items(row == 0);
         let title = if row == 0 {
             "given the goal varies (type to search)"
         } else {
             "derived value the goal holds (type to search)"
         };
-        let mut p = Popup::choose(title, items, ChooseFor::GoalPath(row, paths));
-        if let Popup::Choose {
-            search: s,
-            items,
-            sel,
-            ..
-        } = &mut p
-        {
-            *s = search;
-            if let Some(&first) = choose_listed(items, s).first() {
-                *sel = first;
-            }
-        }
-        self.popups.push(p);
+        self.push_chooser(title, items, ChooseFor::GoalPath(row, paths), search);
     }
 
     /// A path picked for row `row` of the goal form under the chooser: the
@@ -275,11 +221,11 @@ impl App {
                     hi = hi.min(b.high);
                 }
                 Some(vec![
-                    self.goal_text(lo, a.quantity),
-                    self.goal_text(hi, a.quantity),
+                    self.shown_text(lo, a.quantity),
+                    self.shown_text(hi, a.quantity),
                 ])
             } else {
-                Some(vec![self.goal_text(v, a.quantity)])
+                Some(vec![self.shown_text(v, a.quantity)])
             }
         });
         let Some(Popup::GoalForm { fields, sel, .. }) = self.popups.last_mut() else {

@@ -28,19 +28,6 @@ const SECOND: usize = 4;
 const REPORT: usize = 8;
 
 impl App {
-    /// The value of a given in the unit it is shown in, as typed text.
-    fn shown_text(&self, si: f64, q: Quantity) -> String {
-        let u = crate::present::unit_of(q, self.system);
-        let sym = if matches!(q, Quantity::Ratio | Quantity::Mach) {
-            ""
-        } else {
-            u.symbol
-        };
-        format!("{} {sym}", fmt_num(units::from_si(si, u)))
-            .trim()
-            .to_string()
-    }
-
     /// From and to around a given's value now (80 % to 120 %), kept
     /// inside the given's range (a coefficient of 1 sweeps 0.8 to 1).
     fn around(&self, path: &str) -> (String, String) {
@@ -181,67 +168,27 @@ impl App {
                     self.info("sweep done; Enter in this view changes it");
                 }
             }
-            KeyCode::Backspace => {
-                fields[sel].pop();
+            _ => {
+                forms::type_into(&mut fields[sel], code, ctrl);
                 self.popups.push(Popup::SweepForm { fields, sel });
             }
-            KeyCode::Char('u') if ctrl => {
-                fields[sel].clear();
-                self.popups.push(Popup::SweepForm { fields, sel });
-            }
-            KeyCode::Char(c) if !ctrl => {
-                fields[sel].push(c);
-                self.popups.push(Popup::SweepForm { fields, sel });
-            }
-            _ => self.popups.push(Popup::SweepForm { fields, sel }),
         }
     }
 
     /// The chooser for a path row of the form, over the form: givens (with
     /// their value now) for the varied rows, derived values for the report.
     fn open_sweep_chooser(&mut self, row: usize, search: String) {
-        let Some(e) = self.engine.as_ref() else {
-            return;
-        };
-        let mut paths = Vec::new();
-        let mut items = Vec::new();
+        let (mut items, mut paths) = self.address_items(row != REPORT);
         if row == SECOND {
-            paths.push(String::new());
-            items.push("none (one variable)".to_string());
-        }
-        for a in e.addresses() {
-            if a.given != (row != REPORT) {
-                continue;
-            }
-            let now = a.value.map_or("-".to_string(), |v| {
-                crate::present::with_unit(v, a.quantity, self.system)
-            });
-            items.push(if a.label.is_empty() {
-                format!("{} = {now}", a.path)
-            } else {
-                format!("{} = {now}  ({})", a.path, a.label)
-            });
-            paths.push(a.path);
+            paths.insert(0, String::new());
+            items.insert(0, "none (one variable)".to_string());
         }
         let title = match row {
             REPORT => "add a reported value (type to search)",
             SECOND => "second given to vary: one line per value (type to search)",
             _ => "given to vary (type to search)",
         };
-        let mut p = Popup::choose(title, items, ChooseFor::SweepPath(row, paths));
-        if let Popup::Choose {
-            search: s,
-            items,
-            sel,
-            ..
-        } = &mut p
-        {
-            *s = search;
-            if let Some(&first) = choose_listed(items, s).first() {
-                *sel = first;
-            }
-        }
-        self.popups.push(p);
+        self.push_chooser(title, items, ChooseFor::SweepPath(row, paths), search);
     }
 
     /// A path picked for row `row` of the form under the chooser.
