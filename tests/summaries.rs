@@ -219,3 +219,44 @@ fn the_terminal_shows_each_sheets_own_summary() {
         }
     }
 }
+
+#[test]
+fn propulsive_efficiency_is_thrust_power_over_the_jets_kinetic_power_gain() {
+    // The turbofan demo (Mach 0.8) with velocity coefficients of 1 (the
+    // jets' velocities are the stations' own) and 500 kW taken off the
+    // high-pressure shaft. The definition, written out here: thrust power
+    // F_net V0 over the gain in the jets' kinetic power,
+    // sum(W_e V_e^2 / 2) - W_0 V0^2 / 2, each jet at its effective velocity
+    // V_e = F_gross,e / W_e (its pressure thrust counted; common practice);
+    // the offtake is not a jet's.
+    let text = std::fs::read_to_string(sheet("turbofan.ron"))
+        .unwrap()
+        .replace("cv: \"0.99\"", "cv: \"1\"")
+        .replace(
+            "name: \"high\",\n            mechanical_efficiency: \"0.99\",",
+            "name: \"high\",\n            mechanical_efficiency: \"0.99\",\n            offtake: \"500 kW\",",
+        );
+    assert!(
+        text.contains("offtake: \"500 kW\""),
+        "the demo's layout changed"
+    );
+    let e = Engine::new(format::parse(&text).unwrap()).unwrap();
+    let v = |p: &str| e.value(p).unwrap().unwrap();
+    let v0 = v("station.0.v");
+    let ke_in = 0.5 * v("station.0.w") * v0 * v0;
+    let ke_out: f64 = [("19", "bypass nozzle"), ("9", "core nozzle")]
+        .iter()
+        .map(|(s, n)| {
+            let w = v(&format!("station.{s}.w"));
+            let ve = v(&format!("process.{n}.thrust")) / w;
+            0.5 * w * ve * ve
+        })
+        .sum();
+    let want = v("summary.thrust_net") * v0 / (ke_out - ke_in);
+    let got = e.summary().eta_propulsive.unwrap();
+    assert!((got - want).abs() < 1e-9 * want, "{got} vs {want}");
+    // With the offtake in the denominator (the old convention) it would be
+    // lower by the offtake's share: the test tells them apart.
+    let with_offtake = v("summary.thrust_net") * v0 / (ke_out - ke_in + 500e3);
+    assert!(want - with_offtake > 1e-3, "{want} vs {with_offtake}");
+}

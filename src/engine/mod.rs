@@ -1048,8 +1048,11 @@ impl Engine {
                     s.eta_overall = Some(net * v0 / heat);
                 }
             }
-            if v0 > 0.0 && dke > 0.0 && net > 0.0 && net * v0 <= dke {
-                s.eta_propulsive = Some(net * v0 / dke);
+            // Propulsive: thrust power over the jets' kinetic-power gain
+            // alone (shaft offtake is useful work, but not the jets').
+            let dke_jet = ke_out - ke_in;
+            if v0 > 0.0 && dke_jet > 0.0 && net > 0.0 && net * v0 <= dke_jet {
+                s.eta_propulsive = Some(net * v0 / dke_jet);
             }
         }
         s
@@ -1165,7 +1168,7 @@ impl Engine {
                 "propulsive efficiency",
                 s.eta_propulsive,
                 Q::Ratio,
-                "F_net V0 / (kinetic power out - kinetic power in + shaft offtake)".into(),
+                "F_net V0 / (kinetic power out - kinetic power in)".into(),
                 vec![
                     ("F_net".into(), net, Q::Force),
                     ("V0".into(), v0, Q::Velocity),
