@@ -765,7 +765,7 @@ fn a_sweep_runs_through_the_form_and_can_be_changed() {
     // A bad field is refused with the reason, and the form stays.
     press(&mut app, "Tab Tab Tab ctrl-u text:many Enter");
     assert!(matches!(app.popups.last(), Some(Popup::SweepForm { .. })));
-    assert!(status(&app).1 && status(&app).0.contains("steps"));
+    assert!(status(&app).1 && status(&app).0.contains("intervals"));
     press(&mut app, "Esc");
     assert_eq!(app.sweep.as_ref().unwrap().rows.len(), 9);
 }
@@ -1088,6 +1088,31 @@ fn a_carpet_is_set_up_from_the_choosers_and_its_table_scrolls_sideways() {
     assert!(s.contains("[m/s]"), "{s}");
     // The chart says it is a carpet.
     assert!(render_text(&app, 120, 40).contains("carpet"));
+}
+
+#[test]
+fn failed_sweep_points_are_counted_with_their_reason_and_marked() {
+    // The combustor's exit Tt from 500 K (below the compressor's exit,
+    // 601 K: no heat can be added to get there) to 1500 K in 2 intervals.
+    let (mut app, _) = open();
+    press(&mut app, "4 text:combustor.exit_tt Enter");
+    match app.popups.last_mut() {
+        Some(Popup::SweepForm { fields, .. }) => {
+            fields[1] = "500 K".into();
+            fields[2] = "1500 K".into();
+            fields[3] = "2".into();
+        }
+        other => panic!("{other:?}"),
+    }
+    press(&mut app, "Enter");
+    let (msg, err) = status(&app);
+    assert!(
+        err && msg.contains("1 of 3 points could not be computed"),
+        "{msg}"
+    );
+    assert!(msg.contains("the first:"), "{msg}");
+    let s = render_text(&app, 120, 40);
+    assert!(s.contains("!!"), "{s}");
 }
 
 #[test]

@@ -50,6 +50,11 @@ fn a_goal_is_added_solved_switched_off_and_deleted_each_undoable() {
         }
         other => panic!("{other:?}"),
     }
+    // A bare number under a shown unit is refused (20 is not 20 N here).
+    press(&mut app, "ctrl-u text:20 Enter");
+    assert!(matches!(app.popups.last(), Some(Popup::GoalForm { .. })));
+    let (msg, err) = app.status.clone().unwrap();
+    assert!(err && msg.contains("say the unit"), "{msg}");
     // A bad value is refused with the reason; the form stays.
     press(&mut app, "ctrl-u text:lots Enter");
     assert!(matches!(app.popups.last(), Some(Popup::GoalForm { .. })));
@@ -95,6 +100,24 @@ fn a_goal_is_added_solved_switched_off_and_deleted_each_undoable() {
     assert!(app.book().unwrap().goals.is_empty());
     press(&mut app, "Esc z");
     assert_eq!(app.book().unwrap().goals.len(), 1);
+    // z and Z work inside the list too.
+    press(&mut app, "G x");
+    assert!(app.book().unwrap().goals.is_empty());
+    press(&mut app, "z");
+    assert_eq!(app.book().unwrap().goals.len(), 1);
+    assert!(matches!(app.popups.last(), Some(Popup::Goals { .. })));
+    // A second goal varying the same given is refused.
+    press(
+        &mut app,
+        r"a Enter text:freestream.w Enter Enter text:tsfc Enter Enter",
+    );
+    let (msg, err) = app.status.clone().unwrap();
+    assert!(
+        err && msg.contains("varies process.freestream.w already"),
+        "{msg}"
+    );
+    assert_eq!(app.book().unwrap().goals.len(), 1);
+    press(&mut app, "Esc Esc");
     // Edit: Enter on the goal opens its form with its texts.
     press(&mut app, "G Enter");
     match app.popups.last() {

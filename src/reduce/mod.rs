@@ -181,6 +181,15 @@ fn plan_channel(
                 units::accepted(q)
             ),
         })?;
+    if unit.gauge && c.given.is_empty() {
+        return Err(ReduceError::BadChannel {
+            given: given.clone(),
+            why: format!(
+                "the barometer reads the absolute pressure gauge readings are relative to: its unit cannot be {}; use an absolute one (kPa, psia, inHg, mbar)",
+                unit.symbol
+            ),
+        });
+    }
     if unit.gauge && !has_baro {
         return Err(ReduceError::BadChannel {
             given: given.clone(),

@@ -359,6 +359,8 @@ pub struct App {
     pub scroll: u16,
     /// First reported column of the sweep table shown (Left/Right).
     pub sweep_col: usize,
+    /// How many points of the last sweep failed and the first reason.
+    pub sweep_note: Option<String>,
     /// Uncertainties and explanations, computed once per workbook state
     /// and selection rather than in every frame.
     pub derived: Derived,
@@ -498,6 +500,7 @@ impl App {
             scans: None,
             scroll: 0,
             sweep_col: 0,
+            sweep_note: None,
             derived: Derived::default(),
             saved_text: None,
             mode_memory: Default::default(),

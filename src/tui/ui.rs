@@ -108,11 +108,9 @@ pub fn draw(f: &mut Frame, app: &App) {
     };
     // A long message (a problem, a refused value) gets a second line
     // rather than being cut at the edge.
-    let status_h = if msg.chars().count() > area.width as usize {
-        2
-    } else {
-        1
-    };
+    // A long message (a problem, a refused value) gets up to three lines,
+    // wrapped at words, rather than being cut at the edge.
+    let status_h = hang(&msg, area.width as usize, 0).len().clamp(1, 3) as u16;
     let [top, body, status] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Min(5),
@@ -1044,7 +1042,8 @@ fn chart_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             });
         }
     }
-    let mark = if th.ascii { '*' } else { '\u{25cf}' };
+    // (In ASCII a station is #: * marks a given in the grid.)
+    let mark = if th.ascii { '#' } else { '\u{25cf}' };
     let series = [Series {
         polylines: paths,
         labels,
@@ -1093,7 +1092,8 @@ fn isobar_pressures(pmin: f64, pmax: f64, sys: units::UnitSystem) -> Vec<(f64, S
     while round.len() < 64 && 10f64.powi(k) <= hi * 10.0 {
         for m in [1u32, 2, 5] {
             let v = f64::from(m) * 10f64.powi(k);
-            if v >= lo * 0.999 && v <= hi * 1.001 {
+            // The round pressure just below the lowest (ambient, say) too.
+            if v >= lo * 0.8 && v <= hi * 1.001 {
                 // Written as the round number it is: "200", "0.5".
                 let text = if k >= 0 {
                     format!("{}", m as u64 * 10u64.pow(k as u32))
@@ -1166,7 +1166,7 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             // Each carpet line is labelled with its second value at its end.
             let last = k + 1 == n1;
             labels.push(match (x2, q2, last) {
-                (Some(v), Some(q), true) => crate::report::sig(present::shown(*v, q, sys), 3),
+                (Some(v), Some(q), true) => crate::report::sig(present::shown(*v, q, sys), 5),
                 _ => String::new(),
             });
         }
@@ -1269,7 +1269,9 @@ fn sweep_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
         for &c in &cols {
             let q = present::quantity(&sw.report[c]);
             l.push_str(&fit(
-                &ys.get(c).copied().flatten().map_or("-".into(), |y| {
+                // A point that could not be computed: !! (the reason is in
+                // the status line when the sweep ran).
+                &ys.get(c).copied().flatten().map_or("!!".into(), |y| {
                     crate::report::sig(present::shown(y, q, sys), 5)
                 }),
                 11,

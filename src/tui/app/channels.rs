@@ -112,6 +112,18 @@ impl App {
                     self.open_channel_form(a);
                 }
             }
+            // Undo and redo work here too (the messages say z undoes).
+            KeyCode::Char('z') | KeyCode::Char('Z') => {
+                if code == KeyCode::Char('z') {
+                    self.undo()
+                } else {
+                    self.redo()
+                }
+                let n = self.channel_lines().len() + self.channel_adds().len();
+                self.popups.push(Popup::Channels {
+                    sel: sel.min(n.saturating_sub(1)),
+                });
+            }
             KeyCode::Char('x') | KeyCode::Delete if sel < lines.len() => {
                 if let Some(mut nb) = self.book().cloned()
                     && let Some(ch) = nb.channels.as_mut()
@@ -229,6 +241,7 @@ impl App {
     }
 
     fn open_channel_chooser(&mut self, search: String) {
+        // (The ambient pressure is fed by the barometer row, not here.)
         let Some(b) = self.book() else {
             return;
         };
@@ -238,10 +251,12 @@ impl App {
             if p == crate::book::BAROMETER {
                 continue;
             }
-            items.push(format!(
-                "{p} = {t}  ({})",
-                crate::present::unit_of(q, self.system).symbol
-            ));
+            let u = crate::present::unit_of(q, self.system).symbol;
+            items.push(if u.is_empty() {
+                format!("{p} = {t}")
+            } else {
+                format!("{p} = {t}  (shown in {u})")
+            });
             paths.push(p);
         }
         self.push_chooser(
@@ -309,6 +324,17 @@ impl App {
             })
             .collect::<Result<Vec<f64>, String>>()?;
         let opt = |s: &str| Some(s.trim().to_string()).filter(|s| !s.is_empty());
+        // An uncertainty says its unit or %: a bare 5 on a degC channel
+        // would be read in kelvin.
+        for (i, what) in [(4, "systematic"), (5, "random")] {
+            let t = f[i].trim();
+            if !t.is_empty() && t.parse::<f64>().is_ok() {
+                return Err(format!(
+                    "channel {what} uncertainty \"{t}\": say its unit (\"{t} {}\") or % of the reading",
+                    f[2].trim()
+                ));
+            }
+        }
         let given = if at == ChannelAt::Barometer {
             String::new()
         } else {

@@ -109,6 +109,16 @@ impl App {
                 }
                 self.popups.push(Popup::Goals { sel });
             }
+            // Undo and redo work here too (the messages say z undoes).
+            KeyCode::Char('z') | KeyCode::Char('Z') => {
+                if code == KeyCode::Char('z') {
+                    self.undo()
+                } else {
+                    self.redo()
+                }
+                let n = self.book().map_or(0, |b| b.goals.len());
+                self.popups.push(Popup::Goals { sel: sel.min(n) });
+            }
             KeyCode::Char('x') | KeyCode::Delete if sel < n => {
                 if let Some(mut nb) = self.book().cloned() {
                     nb.goals.remove(sel);
@@ -252,9 +262,38 @@ impl App {
             }
         }
         let off = index.and_then(|i| nb.goals.get(i)).is_some_and(|g| g.off);
+        let (vary, target) = (fields[0].trim(), fields[1].trim());
+        // Two goals may not vary one given (each would undo the other).
+        if let Some(k) = nb
+            .goals
+            .iter()
+            .enumerate()
+            .position(|(i, g)| Some(i) != index && !g.off && g.vary == vary)
+        {
+            return Err(format!(
+                "goal {} varies {vary} already: vary another given, or switch that goal off",
+                k + 1
+            ));
+        }
+        // Values as typed in the terminal: a bare number where the display
+        // unit is not the SI one is refused (20 under kN is not 20 N).
+        let e = self.engine.as_ref().ok_or("no workbook")?;
+        let q_target = e
+            .addresses()
+            .into_iter()
+            .find(|a| a.path == target)
+            .map(|a| a.quantity);
+        let q_vary = nb.given(vary).map(|(q, _)| q);
+        let baro = nb.barometer();
+        for (i, q) in [(2, q_target), (3, q_vary), (4, q_vary)] {
+            if let Some(q) = q {
+                units::parse_stated_at(&fields[i], q, GOAL_ROWS[i].0, self.system, baro)
+                    .map_err(|e| format!("goal not taken: {e}"))?;
+            }
+        }
         let goal = Goal {
-            vary: fields[0].trim().to_string(),
-            target: fields[1].trim().to_string(),
+            vary: vary.to_string(),
+            target: target.to_string(),
             value: Given::raw(fields[2].trim()),
             low: Given::raw(fields[3].trim()),
             high: Given::raw(fields[4].trim()),

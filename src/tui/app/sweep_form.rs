@@ -14,11 +14,11 @@ pub const ROWS: [(&str, bool); 9] = [
     ("vary", true),
     ("from", false),
     ("to", false),
-    ("steps", false),
+    ("intervals", false),
     ("then vary (carpet)", true),
     ("  from", false),
     ("  to", false),
-    ("  steps", false),
+    ("  intervals", false),
     ("report", true),
 ];
 
@@ -99,8 +99,26 @@ impl App {
         {
             "summary.thrust_net, summary.tsfc".to_string()
         } else {
-            let last = b.stations.last().map_or(String::new(), |s| s.name.clone());
-            format!("station.{last}.tt, station.{last}.pt")
+            // A rig: its components' first figures (pressure ratio and
+            // efficiency, combustion efficiency), else the last station.
+            let figures: Vec<String> = self
+                .engine
+                .as_ref()
+                .map(|e| {
+                    crate::present::summary_lines(e)
+                        .into_iter()
+                        .map(|l| l.path)
+                        .filter(|p| !p.is_empty())
+                        .take(2)
+                        .collect()
+                })
+                .unwrap_or_default();
+            if figures.is_empty() {
+                let last = b.stations.last().map_or(String::new(), |s| s.name.clone());
+                format!("station.{last}.tt, station.{last}.pt")
+            } else {
+                figures.join(", ")
+            }
         };
         let (from, to) = self.around(&pick);
         let mut fields: [String; 9] = Default::default();
@@ -164,6 +182,8 @@ impl App {
                 if let Err(e) = self.run_sweep(&fields) {
                     self.error(e);
                     self.popups.push(Popup::SweepForm { fields, sel });
+                } else if let Some(n) = self.sweep_note.clone() {
+                    self.error(format!("sweep done; {n}"));
                 } else {
                     self.info("sweep done; Enter in this view changes it");
                 }
@@ -268,10 +288,10 @@ impl App {
         let steps: usize = fields[at + 3]
             .trim()
             .parse()
-            .map_err(|_| format!("{label} steps: a whole number"))?;
+            .map_err(|_| format!("{label} intervals: a whole number (points = intervals + 1)"))?;
         if !(1..=2000).contains(&steps) {
             return Err(format!(
-                "{label} steps: 1 to 2000 in the terminal (use the sweep command for more)"
+                "{label} intervals: 1 to 2000 in the terminal (use the sweep command for more)"
             ));
         }
         Ok((vary, sweep::linspace(from, to, steps)))
@@ -300,8 +320,8 @@ impl App {
             return Err("report: at least one derived value (Enter on the row adds one)".into());
         }
         let e = self.engine.as_ref().ok_or("no workbook")?;
-        let rows = match &second {
-            None => sweep::run(e, &vary, &xs, &report).map_err(|e| e.to_string())?,
+        let checked = match &second {
+            None => sweep::run_checked(e, &vary, &xs, &report).map_err(|e| e.to_string())?,
             Some((p2, x2s)) => {
                 // One line of the carpet per value of the second given, on
                 // a copy of the engine.
@@ -309,11 +329,28 @@ impl App {
                 for &x2 in x2s {
                     let mut e2 = e.clone();
                     e2.set_si(p2, x2).map_err(|e| e.to_string())?;
-                    rows.extend(sweep::run(&e2, &vary, &xs, &report).map_err(|e| e.to_string())?);
+                    rows.extend(
+                        sweep::run_checked(&e2, &vary, &xs, &report).map_err(|e| e.to_string())?,
+                    );
                 }
                 rows
             }
         };
+        // Failed points are counted, with the first reason.
+        let failed: Vec<&Option<String>> = checked
+            .iter()
+            .filter(|(r, _)| r.1.iter().any(Option::is_none))
+            .map(|(_, why)| why)
+            .collect();
+        let note = failed.first().map(|why| {
+            format!(
+                "{} of {} points could not be computed (!! in the table, x on the chart's axis); the first: {}",
+                failed.len(),
+                checked.len(),
+                why.as_deref().unwrap_or("a reported value is not defined there")
+            )
+        });
+        let rows = checked.into_iter().map(|(r, _)| r).collect();
         self.sweep = Some(SweepData {
             vary,
             report,
@@ -321,6 +358,7 @@ impl App {
             second,
         });
         self.sweep_col = 0;
+        self.sweep_note = note;
         Ok(())
     }
 }
