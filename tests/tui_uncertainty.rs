@@ -76,4 +76,38 @@ fn the_panel_shows_the_parts_and_the_inputs_by_name() {
         flat.contains("100 % station 2 tt (T2A+T2B+T2C+T2D)"),
         "{flat}"
     );
+
+    // The compressor's isentropic efficiency, selected in the panel: its
+    // breakdown in the summary. The demo's gas is calorically perfect, so
+    // eta = (T1 PR^((g-1)/g) - T1) / (T2 - T1) and the sensitivity to the
+    // exit temperature is d eta / d T2 = -eta / (T2 - T1) exactly.
+    use stationwise::tui::app::PanelRow;
+    app.on_key(KeyEvent::new(KeyCode::Char('j'), KeyModifiers::NONE));
+    app.on_key(KeyEvent::new(KeyCode::Tab, KeyModifiers::NONE));
+    let at = app
+        .panel_rows()
+        .iter()
+        .position(|r| *r == PanelRow::Figure("eta_isentropic".into()))
+        .expect("the efficiency is a panel row");
+    for _ in 0..at {
+        app.on_key(KeyEvent::new(KeyCode::Char('j'), KeyModifiers::NONE));
+    }
+    let e = app.engine.as_ref().unwrap();
+    let eta = e
+        .value("process.compressor.eta_isentropic")
+        .unwrap()
+        .unwrap();
+    let t1 = e.value("station.1.tt").unwrap().unwrap();
+    let t2 = e.value("station.2.tt").unwrap().unwrap();
+    let flat = summary_text(&render_text(&app, 120, 40));
+    assert!(
+        flat.contains("compressor: isentropic efficiency \u{b1}"),
+        "{flat}"
+    );
+    assert!(flat.contains("systematic"), "{flat}");
+    let want = format!(
+        "station 2 tt (T2A+T2B+T2C+T2D): sensitivity {} per K",
+        stationwise::report::sig(-eta / (t2 - t1), 3)
+    );
+    assert!(flat.contains(&want), "missing \"{want}\" in {flat}");
 }

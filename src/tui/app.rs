@@ -297,6 +297,9 @@ pub enum PanelRow {
     Shaft,
     /// An optional shaft value ("offtake", "speed"): Enter adds or removes it.
     ShaftOptional(&'static str),
+    /// A figure the process derives (selecting it shows its uncertainty
+    /// in the summary; Enter says how to change it).
+    Figure(String),
 }
 
 /// A computed sweep.
@@ -604,7 +607,31 @@ impl App {
                 rows.push(PanelRow::ShaftOptional("speed"));
             }
         }
+        // The figures it derives, last.
+        if let (Some(e), Some(p)) = (e, producer)
+            && let Some(r) = e.process(&p.name)
+        {
+            for (k, _) in &r.figures {
+                rows.push(PanelRow::Figure((*k).to_string()));
+            }
+        }
         rows
+    }
+
+    /// The path whose uncertainty the summary shows: the selected figure
+    /// in the panel, else the selected grid cell.
+    pub fn uncertainty_path(&self) -> Option<String> {
+        let e = self.engine.as_ref()?;
+        if self.focus == Focus::Panel
+            && let Some(PanelRow::Figure(k)) = self.panel_rows().get(self.panel)
+        {
+            let p = &e.book().processes[e.producer_of(self.row)];
+            return Some(format!("process.{}.{k}", p.name));
+        }
+        let keys = self.columns.keys();
+        let key = keys.get(self.col.min(keys.len().saturating_sub(1)))?;
+        let st = e.stations().get(self.row)?;
+        Some(format!("station.{}.{key}", st.name))
     }
 
     /// The given path behind a grid cell, if the cell is a given.
@@ -868,6 +895,12 @@ impl App {
                 }
                 Some(PanelRow::ShaftOptional(what)) => {
                     self.toggle_shaft_value(what);
+                    return;
+                }
+                Some(PanelRow::Figure(_)) => {
+                    self.info(
+                        "a figure this process derives: change the givens above (or m for a mode that takes it as a given)",
+                    );
                     return;
                 }
                 None => return,

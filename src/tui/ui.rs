@@ -439,11 +439,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let [pa, sa] =
         Layout::horizontal([Constraint::Percentage(62), Constraint::Percentage(38)]).areas(lower);
     panel(f, app, th, pa, unc.as_ref());
-    let sel_path = e
-        .stations()
-        .get(app.row)
-        .map(|s| format!("station.{}.{sel_key}", s.name));
-    summary(f, app, th, sa, unc.as_ref().zip(sel_path));
+    summary(f, app, th, sa, unc.as_ref().zip(app.uncertainty_path()));
 }
 
 fn given_line(app: &App, path: &str) -> Option<(String, String)> {
@@ -561,6 +557,36 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
                     Style::default(),
                 )
             }
+            PanelRow::Figure(k) => {
+                let Some(v) = e.process(&p.name).and_then(|r| {
+                    r.figures
+                        .iter()
+                        .find(|(fk, _)| *fk == k.as_str())
+                        .map(|x| x.1)
+                }) else {
+                    continue;
+                };
+                let (label, q) = figure_meta(k);
+                let pm = unc
+                    .and_then(|m| m.get(&format!("process.{}.{k}", p.name)))
+                    .map_or(String::new(), |u| {
+                        let unit = unit_label(q, app.system);
+                        format!(
+                            " {} {}{}",
+                            if th.ascii { "+/-" } else { "\u{b1}" },
+                            crate::report::sig(span_of(u.u95, q, app.system), 3),
+                            if unit.is_empty() {
+                                String::new()
+                            } else {
+                                format!(" {unit}")
+                            }
+                        )
+                    });
+                (
+                    format!("{marker} {label:<22} {}{pm}", with_unit(v, q, app.system)),
+                    Style::default(),
+                )
+            }
             PanelRow::Branch => (
                 format!(
                     "{marker} branch         : {} (Enter toggles)",
@@ -579,25 +605,6 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
             text,
             if sel { style.patch(th.sel()) } else { style },
         )));
-    }
-    if let Some(r) = e.process(&p.name) {
-        for (k, v) in &r.figures {
-            let (label, q) = figure_meta(k);
-            let pm = unc
-                .and_then(|m| m.get(&format!("process.{}.{k}", p.name)))
-                .map_or(String::new(), |u| {
-                    let zero = present::shown(0.0, q, app.system);
-                    format!(
-                        " {} {}",
-                        if th.ascii { "+/-" } else { "\u{b1}" },
-                        crate::report::sig(present::shown(u.u95, q, app.system) - zero, 3)
-                    )
-                });
-            lines.push(Line::from(format!(
-                "  {label:<22} {}{pm}",
-                with_unit(*v, q, app.system)
-            )));
-        }
     }
     let kind = crate::kinds::of(&p.kind).name();
     let tab = if app.focus == Focus::Panel {
