@@ -79,6 +79,28 @@ pub fn to_json(engine: &Engine) -> serde_json::Value {
             "figures": figs,
         }));
     }
+    // Each goal: what it varies and holds, the target, the value found,
+    // what was reached, the residual and the evaluations it took.
+    let goals: Vec<serde_json::Value> = engine
+        .book()
+        .goals
+        .iter()
+        .zip(engine.goal_outcomes())
+        .map(|(g, o)| {
+            serde_json::json!({
+                "vary": g.vary,
+                "target": g.target,
+                "target_value": g.value.si(),
+                "off": g.off,
+                "value": o.value,
+                "reached": o.reached,
+                "residual": o.residual,
+                "iterations": o.iterations,
+                "met": !g.off && o.problem.is_none() && o.value.is_some(),
+                "problem": o.problem,
+            })
+        })
+        .collect();
     let problems: Vec<serde_json::Value> = engine
         .problems()
         .iter()
@@ -89,6 +111,7 @@ pub fn to_json(engine: &Engine) -> serde_json::Value {
         "stations": stations,
         "processes": processes,
         "summary": summary,
+        "goals": goals,
         "problems": problems,
     })
 }
@@ -177,14 +200,23 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
         }
         if let Some(v) = g.value {
             let goal = &b.goals[i];
+            // What it reached and how far off, never only the target text.
+            let q = crate::book::paths::quantity_of_derived(&goal.target)
+                .or_else(|| b.given(&goal.target).map(|(q, _)| q))
+                .unwrap_or(crate::units::Quantity::Ratio);
             writeln!(
                 out,
-                "  goal {}: {} = {} gives {} = {}",
+                "  goal {}: {} = {} gives {} = {} (target {}, residual {}, {} evaluations){}",
                 i + 1,
                 goal.vary,
                 report::sig(v, 7),
                 goal.target,
-                goal.value.text()
+                g.reached
+                    .map_or("not computed".to_string(), |r| with_unit(r, q, system)),
+                goal.value.text(),
+                g.residual.map_or("-".to_string(), |r| format!("{r:+.2e}")),
+                g.iterations,
+                if g.problem.is_some() { ": NOT MET" } else { "" }
             )?;
         }
     }

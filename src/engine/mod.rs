@@ -20,6 +20,7 @@
 
 pub mod address;
 pub mod compute;
+mod coupled;
 pub mod explain;
 pub mod path;
 pub mod sweep;
@@ -122,12 +123,19 @@ struct Graph {
 }
 
 /// A goal's outcome.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct GoalOutcome {
     /// The solved value of the varied given, SI.
     pub value: Option<f64>,
     /// Why it could not be met.
     pub problem: Option<String>,
+    /// The target's value reached, SI (after every goal was solved).
+    pub reached: Option<f64>,
+    /// (reached - target) / |target|.
+    pub residual: Option<f64>,
+    /// Evaluations of the workbook it took (bracketing, then the coupled
+    /// Newton steps shared by all goals).
+    pub iterations: u32,
 }
 
 /// What a workbook is, for its summary: an engine (a free-stream entry and
@@ -1320,16 +1328,15 @@ impl Engine {
         for g in &goals {
             // A goal switched off is kept, not solved.
             if g.off {
-                self.goals.push(GoalOutcome {
-                    value: None,
-                    problem: None,
-                });
+                self.goals.push(GoalOutcome::default());
                 continue;
             }
             let target = g.value.si();
             let scale = target.abs().max(1e-12);
             let mut last_problem: Option<String> = None;
+            let evaluations = std::cell::Cell::new(0u32);
             let f = |eng: &mut Engine, x: f64| -> Result<f64, String> {
+                evaluations.set(evaluations.get() + 1);
                 eng.set_si_quiet(&g.vary, x)?;
                 eng.run_nodes();
                 match eng.value(&g.target) {
@@ -1354,6 +1361,7 @@ impl Engine {
                         g.low.text(),
                         g.high.text()
                     )),
+                    ..GoalOutcome::default()
                 });
                 continue;
             }
@@ -1373,7 +1381,8 @@ impl Engine {
                     self.run_nodes();
                     GoalOutcome {
                         value: Some(x),
-                        problem: None,
+                        iterations: evaluations.get(),
+                        ..GoalOutcome::default()
                     }
                 }
                 Err(e) => {
@@ -1418,12 +1427,18 @@ impl Engine {
                     GoalOutcome {
                         value: None,
                         problem: last_problem.clone(),
+                        iterations: evaluations.get(),
+                        ..GoalOutcome::default()
                     }
                 }
             };
             let _ = last_problem;
             self.goals.push(outcome);
         }
+        // Goals met one after another disturb each other: solve them
+        // together, then report what each reached.
+        self.couple_goals(&goals);
+        self.report_goals(&goals);
     }
 
     fn set_si_quiet(&mut self, path: &str, si: f64) -> Result<(), String> {

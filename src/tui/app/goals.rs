@@ -46,11 +46,18 @@ impl App {
                 } else {
                     match out.get(i) {
                         Some(o) => match (o.value, &o.problem) {
-                            (Some(v), _) => {
+                            // A value with a problem is not met (the
+                            // coupled solve stalled, a residual stayed).
+                            (Some(_), Some(p)) | (None, Some(p)) => format!("NOT MET: {p}"),
+                            (Some(v), None) => {
                                 let q = b.given(&g.vary).map_or(Quantity::Ratio, |(q, _)| q);
-                                format!("met with {}", crate::present::with_unit(v, q, self.system))
+                                format!(
+                                    "met with {} (residual {}, {} evaluations)",
+                                    crate::present::with_unit(v, q, self.system),
+                                    o.residual.map_or("-".into(), |r| format!("{r:+.1e}")),
+                                    o.iterations
+                                )
                             }
-                            (None, Some(p)) => format!("NOT MET: {p}"),
                             (None, None) => "not solved (values withheld)".to_string(),
                         },
                         None => "not solved".to_string(),
