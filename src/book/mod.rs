@@ -684,6 +684,10 @@ pub struct Split {
 pub struct Mixer {
     /// Station of the second stream.
     pub secondary: String,
+    /// Largest mismatch of the two streams' static pressures at the mixing
+    /// plane, |p2/p1 - 1|, before the mix is a problem (default 0.05).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_mismatch: Option<Given>,
 }
 
 /// A shaft.

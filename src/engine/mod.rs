@@ -120,6 +120,8 @@ struct Graph {
     to_index: Vec<usize>,
     /// Output stations of each process: `to`, then a second stream.
     outputs: Vec<Vec<usize>>,
+    /// Some process is a mixer (its balance is checked after each solve).
+    has_mixer: bool,
 }
 
 /// A goal's outcome.
@@ -249,6 +251,8 @@ pub struct Engine {
     dirty: Vec<bool>,
     /// Scratch marks of the processes a recompute changed.
     changed: Vec<bool>,
+    /// Problems of the converged state (a mixer out of balance).
+    checks: Vec<Problem>,
     /// Some given is a gauge pressure (it follows the barometer).
     gauged: bool,
     goals: Vec<GoalOutcome>,
@@ -555,6 +559,10 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         .iter()
         .copied()
         .find(|&i| crate::kinds::of(&book.processes[i].kind).is_entry());
+    g.has_mixer = book
+        .processes
+        .iter()
+        .any(|p| matches!(p.kind, crate::book::Kind::Mixer(_)));
     Ok(g)
 }
 
@@ -575,6 +583,7 @@ impl Engine {
             nodes: vec![None; n],
             dirty: vec![true; n],
             changed: Vec::new(),
+            checks: Vec::new(),
             goals: Vec::new(),
             summary: Summary::default(),
             evaluations: 0,
@@ -792,6 +801,46 @@ impl Engine {
         self.run_nodes();
         if !self.book.goals.is_empty() && self.withheld.is_none() {
             self.solve_goals();
+        }
+        self.check_mixers();
+    }
+
+    /// A mixer whose streams arrive at static pressures further apart than
+    /// its allowed mismatch (default 5 %) is a problem once goals have had
+    /// their say (a goal may be what balances it): the constant-area mix
+    /// is computed, but a real mixer would not run there.
+    fn check_mixers(&mut self) {
+        self.checks.clear();
+        if !self.graph.has_mixer {
+            return;
+        }
+        for (i, p) in self.book.processes.iter().enumerate() {
+            let crate::book::Kind::Mixer(m) = &p.kind else {
+                continue;
+            };
+            let Some(NodeOut::Done(r)) = &self.nodes[i] else {
+                continue;
+            };
+            let Some(ratio) = r
+                .figures
+                .iter()
+                .find(|(k, _)| *k == "p_ratio_streams")
+                .map(|x| x.1)
+            else {
+                continue;
+            };
+            let tol = m.max_mismatch.as_ref().map_or(0.05, |g| g.si());
+            if (ratio - 1.0).abs() > tol {
+                self.checks.push(Problem {
+                    place: format!("mixer \"{}\"", p.name),
+                    message: format!(
+                        "the second stream meets the first at {:.3} times its static pressure (allowed 1 +- {}): balance them with a goal (vary the bypass ratio or an area so that process.{}.p_ratio_streams = 1), or state max_mismatch",
+                        ratio,
+                        crate::report::sig(tol, 3),
+                        p.name
+                    ),
+                });
+            }
         }
     }
 
@@ -1504,6 +1553,7 @@ impl Engine {
                 });
             }
         }
+        v.extend(self.checks.iter().cloned());
         v
     }
 
@@ -1516,7 +1566,8 @@ impl Engine {
                 .nodes
                 .iter()
                 .any(|n| matches!(n, Some(NodeOut::Failed(_))))
-            && self.goals.iter().all(|g| g.problem.is_none());
+            && self.goals.iter().all(|g| g.problem.is_none())
+            && self.checks.is_empty();
         if none {
             return None;
         }

@@ -13,7 +13,10 @@ impl ProcessKind for Mixer {
     }
 
     givens!(this, f => {
-        let _ = (this, f);
+        let Mixer { max_mismatch, .. } = this;
+        if let Some(m) = max_mismatch {
+            f("max_mismatch", Quantity::Ratio, m);
+        }
     });
 
     fn sets_exit_statics(&self, _exit: &Station) -> bool {
@@ -25,7 +28,7 @@ impl ProcessKind for Mixer {
     }
 
     names!(this, f => {
-        let Mixer { secondary } = this;
+        let Mixer { secondary, .. } = this;
         f(NameOf::Input, secondary);
     });
 
@@ -47,6 +50,7 @@ pub fn fresh() -> Vec<(&'static str, Kind)> {
         "mixer of two streams (picks the second stream's station)",
         Kind::Mixer(Mixer {
             secondary: String::new(),
+            max_mismatch: None,
         }),
     )]
 }

@@ -700,6 +700,7 @@ impl App {
         let pi = e.producer_of(row);
         nb.processes[pi].kind = Kind::Mixer(crate::book::Mixer {
             secondary: secondary.to_string(),
+            max_mismatch: None,
         });
         self.sync_measured(&mut nb, pi);
         if let Err(es) = nb.resolve() {
