@@ -503,10 +503,11 @@ fn panel(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<&UncMap>)
         let (text, style) = match r {
             PanelRow::Given(path) => match given_line(app, path) {
                 Some((field, val)) => {
+                    // Whose given it is, when not the process's own.
                     let owner = if path.starts_with("station.") {
-                        "station".to_string()
+                        format!("[station {}]", st.name)
                     } else if let Some(rest) = path.strip_prefix("shaft.") {
-                        format!("shaft {}", rest.rsplit_once('.').map_or(rest, |(n, _)| n))
+                        format!("[shaft {}]", rest.rsplit_once('.').map_or(rest, |(n, _)| n))
                     } else {
                         String::new()
                     };
