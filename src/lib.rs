@@ -43,6 +43,7 @@ pub mod format;
 pub mod gas;
 pub mod kinds;
 pub mod present;
+pub mod psychro;
 pub mod range;
 pub mod reduce;
 pub mod report;

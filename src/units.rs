@@ -440,6 +440,7 @@ static RAD: Unit = Unit::new("rad", Q::Angle, 1.0, &["radian", "radians"]);
 
 static RATIO: Unit = Unit::new("", Q::Ratio, 1.0, &[]);
 static PERCENT: Unit = Unit::new("%", Q::Ratio, 0.01, &[]);
+static G_PER_KG: Unit = Unit::new("g/kg", Q::Ratio, 0.001, &[]);
 
 static MACH: Unit = Unit::new("", Q::Mach, 1.0, &[]);
 
@@ -576,6 +577,7 @@ static UNITS: &[&Unit] = &[
     &RAD,
     &RATIO,
     &PERCENT,
+    &G_PER_KG,
     &MACH,
     &S,
     &MIN,
@@ -1793,7 +1795,7 @@ mod tests {
     #[test]
     fn table_accepted_lists() {
         assert_eq!(accepted(Q::Temperature), "K, degC, degF, degR");
-        assert_eq!(accepted(Q::Ratio), "no unit, %");
+        assert_eq!(accepted(Q::Ratio), "no unit, %, g/kg");
         assert_eq!(accepted(Q::Mach), "no unit");
     }
 

@@ -157,13 +157,21 @@ pub fn of(scope: &str, key: &str, q: Quantity) -> Option<Bound> {
             false,
             "a wall friction factor is not negative (0.002 to 0.01 is usual, common practice)",
         ),
+        (_, "relative_humidity", _) => b(
+            0.0,
+            true,
+            1.0,
+            true,
+            true,
+            "relative humidity from 0 to 100 % (above 100 % the air is supersaturated)",
+        ),
         (_, "humidity", _) => b(
             0.0,
             true,
             0.2,
             true,
             true,
-            "specific humidity in kg of water per kg of dry air (saturated air at 50 degC holds about 0.09, from memory)",
+            "specific humidity in kg of water per kg of moist air (saturated air at 50 degC holds about 0.08, from memory)",
         ),
         (_, "hc", _) => b(
             0.0,

@@ -289,9 +289,14 @@ pub struct Ambient {
     pub condition: Condition,
     /// Flight condition (Mach 0 or speed 0 for a static stand).
     pub flight: Flight,
-    /// Specific humidity of the air (kg vapour per kg moist air).
+    /// Specific humidity of the air (kg vapour per kg moist air; "g/kg"
+    /// reads in grams).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub humidity: Option<Given>,
+    /// Relative humidity ("60 %") at the ambient temperature and pressure;
+    /// instead of `humidity`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub relative_humidity: Option<Given>,
     /// Reference condition of corrected values (ISA sea level if absent).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reference: Option<Reference>,
@@ -973,6 +978,9 @@ macro_rules! walk_givens {
         }
         if let Some(h) = & $($m)* book.ambient.humidity {
             g("ambient", "", "humidity", Quantity::Ratio, h);
+        }
+        if let Some(h) = & $($m)* book.ambient.relative_humidity {
+            g("ambient", "", "relative_humidity", Quantity::Ratio, h);
         }
         if let GasSettings::CaloricallyPerfect {
             gamma,

@@ -312,8 +312,38 @@ fn ambient_state(book: &Workbook, model: &GasModel) -> Result<AmbientState, Stri
     if !(t.is_finite() && t > 0.0 && p.is_finite() && p > 0.0) {
         return Err("ambient pressure and temperature must be positive".into());
     }
-    let air = match &a.humidity {
-        Some(q) => Composition::humid_air(q.si()).map_err(|e| e.to_string())?,
+    // Humidity: specific (checked against saturation at the ambient
+    // temperature and pressure) or relative; not both.
+    let q = match (&a.humidity, &a.relative_humidity) {
+        (Some(_), Some(_)) => {
+            return Err(
+                "give humidity (specific, kg/kg or g/kg) or relative_humidity (%), not both".into(),
+            );
+        }
+        (Some(q), None) => {
+            if q.text().contains('%') {
+                return Err(format!(
+                    "humidity \"{}\" is a specific humidity (kg of vapour per kg of air, or g/kg); a relative humidity goes in relative_humidity",
+                    q.text()
+                ));
+            }
+            let sat = crate::psychro::saturated(t, p)?;
+            if q.si() > sat {
+                return Err(format!(
+                    "humidity {} kg/kg is above saturation: air at {:.2} K and {:.0} Pa holds at most {} kg/kg (100 % relative humidity)",
+                    crate::report::sig(q.si(), 4),
+                    t,
+                    p,
+                    crate::report::sig(sat, 4)
+                ));
+            }
+            Some(q.si())
+        }
+        (None, Some(rh)) => Some(crate::psychro::from_relative(rh.si(), t, p)?),
+        (None, None) => None,
+    };
+    let air = match q {
+        Some(q) => Composition::humid_air(q).map_err(|e| e.to_string())?,
         None => Composition::dry_air(),
     };
     let gas = model.gas(&air).map_err(|e| e.to_string())?;
@@ -600,6 +630,12 @@ impl Engine {
         }
         e.recompute();
         Ok(e)
+    }
+
+    /// The composition of the ambient air (dry air and its water), when
+    /// the ambient block computes.
+    pub fn ambient_air(&self) -> Option<Composition> {
+        self.ambient.as_ref().ok().map(|a| a.air)
     }
 
     /// The workbook as evaluated (goals may have varied some SI values).
