@@ -118,7 +118,7 @@ fn ideal_turbojet_text(pi_c: f64) -> String {
             shaft: "spool",
         ))),
         (name: "nozzle", from: "5", to: "9", kind: Nozzle((
-            shape: ConvergentDivergent, exit: Matched, cv: "1", cd: "1",
+            shape: ConvergentDivergent, exit: Matched, cfg: "1", cd: "1",
         ))),
     ],
     shafts: [(name: "spool", mechanical_efficiency: "1")],
@@ -295,8 +295,8 @@ fn incremental_recompute_counts() {
 
     // The nozzle's cv is read by the nozzle only, and nothing is downstream.
     let n = e.evaluations();
-    e.set_given("process.nozzle.cv", "0.98").unwrap();
-    assert_eq!(e.evaluations() - n, 1, "nozzle cv");
+    e.set_given("process.nozzle.cfg", "0.98").unwrap();
+    assert_eq!(e.evaluations() - n, 1, "nozzle cfg");
 
     // Compressor, then combustor (its input), turbine (input and shaft) and
     // nozzle: 4. Free stream and intake are upstream and stay.
@@ -376,7 +376,7 @@ fn edit() -> impl Strategy<Value = (&'static str, String)> {
         (0.75f64..0.95).prop_map(|x| ("process.compressor.efficiency", format!("{x:.4}"))),
         (1200.0f64..1700.0).prop_map(|x| ("process.combustor.exit_tt", format!("{x:.2} K"))),
         (0.9f64..1.0).prop_map(|x| ("process.intake.recovery", format!("{x:.4}"))),
-        (0.95f64..1.0).prop_map(|x| ("process.nozzle.cv", format!("{x:.4}"))),
+        (0.95f64..1.0).prop_map(|x| ("process.nozzle.cfg", format!("{x:.4}"))),
         (5.0f64..40.0).prop_map(|x| ("process.freestream.w", format!("{x:.3} kg/s"))),
         (0.0f64..8000.0).prop_map(|x| ("ambient.altitude", format!("{x:.1} m"))),
         (0.95f64..1.0).prop_map(|x| ("shaft.spool.mechanical_efficiency", format!("{x:.4}"))),
@@ -465,7 +465,7 @@ fn bad_inputs_are_refused_or_become_problems_in_place() {
         ("process.turbine.efficiency", "1.5", Refused("must be")),
         // The turbine reads the shaft's mechanical efficiency for its work.
         ("shaft.spool.mechanical_efficiency", "0", Refused("must be")),
-        ("process.nozzle.cv", "0", Refused("must be")),
+        ("process.nozzle.cfg", "0", Refused("must be")),
         ("process.nozzle.cd", "2", Refused("must be")),
         ("process.nosuch.w", "20 kg/s", Refused("process.nosuch.w")),
         ("station.3.tt", "600 K", Refused("station.3.tt")),

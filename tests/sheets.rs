@@ -72,7 +72,7 @@ fn nozzle_coefficients(e: &Engine, station: &str) -> (f64, f64) {
             .map(|g| g.3)
             .unwrap_or_else(|| panic!("no {k} on {}", p.name))
     };
-    (given("cv"), given("cd"))
+    (given("cfg"), given("cd"))
 }
 
 fn close(got: f64, want: f64, rel: f64, what: &str) {
@@ -357,12 +357,12 @@ fn ramjet_thrust_and_tsfc_are_plausible() {
     // Fully expanded: exit at ambient pressure, so gross thrust is W9 V9.
     let s9 = statics(&e, "9");
     close(s9.p, fs.p, 1e-6, "nozzle exit pressure");
-    let (cv, _) = nozzle_coefficients(&e, "9");
+    let (cfg, _) = nozzle_coefficients(&e, "9");
     close(
         gross,
-        e.station("9").unwrap().w * cv * s9.v,
+        cfg * e.station("9").unwrap().w * s9.v,
         1e-6,
-        "gross thrust W Cv V",
+        "gross thrust Cfg W V",
     );
     let eta_p = s.eta_propulsive.unwrap();
     assert!(eta_p > 0.0 && eta_p < 1.0, "propulsive efficiency {eta_p}");
@@ -514,14 +514,17 @@ fn turbofan_cruise_thrust_tsfc_and_balances() {
         1e-12,
         "bypass flow",
     );
-    // Gross thrust of each nozzle from its exit state: W V + (p - p0) A.
+    // Gross thrust of each nozzle from its exit state: Cfg (W V + (p - p0)
+    // A), A the station's (effective) area, so rho V A = W there.
     let p0 = e.ambient().unwrap().flow.p;
     let mut gross = 0.0;
     for st in ["19", "9"] {
         let v = e.station(st).unwrap();
         let f = v.flow.unwrap();
-        let (cv, cd) = nozzle_coefficients(&e, st);
-        gross += v.w * cv * f.v + (f.p - p0) * cd * v.area.unwrap();
+        let (cfg, _) = nozzle_coefficients(&e, st);
+        let a = v.area.unwrap();
+        close(f.rho * f.v * a, v.w, 1e-9, "rho V A = W at the nozzle exit");
+        gross += cfg * (v.w * f.v + (f.p - p0) * a);
     }
     close(
         s.thrust_gross.unwrap(),

@@ -87,7 +87,7 @@ fn a_nozzle_on_a_rig_adds_no_propulsion_figure() {
     );
     let text = text.replacen(
         "            note: \"efficiency is derived in the measured mode\",\n        ),\n",
-        "            note: \"efficiency is derived in the measured mode\",\n        ),\n        (\n            name: \"nozzle\",\n            from: \"4\",\n            to: \"9\",\n            kind: Nozzle((\n                shape: Convergent,\n                exit: Matched,\n                cv: \"0.98\",\n                cd: \"0.98\",\n            )),\n        ),\n",
+        "            note: \"efficiency is derived in the measured mode\",\n        ),\n        (\n            name: \"nozzle\",\n            from: \"4\",\n            to: \"9\",\n            kind: Nozzle((\n                shape: Convergent,\n                exit: Matched,\n                cfg: \"0.98\",\n                cd: \"0.98\",\n            )),\n        ),\n",
         1,
     );
     let e = Engine::new(format::parse(&text).unwrap()).unwrap();
@@ -231,7 +231,7 @@ fn propulsive_efficiency_is_thrust_power_over_the_jets_kinetic_power_gain() {
     // the offtake is not a jet's.
     let text = std::fs::read_to_string(sheet("turbofan.ron"))
         .unwrap()
-        .replace("cv: \"0.99\"", "cv: \"1\"")
+        .replace("cfg: \"0.99\"", "cfg: \"1\"")
         .replace(
             "name: \"high\",\n            mechanical_efficiency: \"0.99\",",
             "name: \"high\",\n            mechanical_efficiency: \"0.99\",\n            offtake: \"500 kW\",",

@@ -22,7 +22,7 @@ fn children_peak_kb() -> i64 {
 fn sweep(steps: usize, format: &str) -> (i64, usize) {
     let out = Command::new(env!("CARGO_BIN_EXE_stationwise"))
         .args(["sweep", &sheet(), "--vary"])
-        .arg(format!("process.nozzle.cv=0.95:0.99@{}", steps + 1))
+        .arg(format!("process.nozzle.cfg=0.95:0.99@{}", steps + 1))
         .args(["--report", "summary.thrust_net", "--format", format])
         .stdout(Stdio::piped())
         .output()

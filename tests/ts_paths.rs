@@ -51,7 +51,7 @@ fn sheet() -> String {
             shaft: "spool",
         ))),
         (name: "nozzle", from: "5", to: "9", kind: Nozzle((
-            shape: Convergent, exit: Matched, cv: "1", cd: "1",
+            shape: Convergent, exit: Matched, cfg: "1", cd: "1",
         ))),
     ],
     shafts: [(name: "spool", mechanical_efficiency: "1")],

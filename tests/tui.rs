@@ -1021,16 +1021,16 @@ fn a_carpet_is_set_up_from_the_choosers_and_its_table_scrolls_sideways() {
     let (mut app, _) = open();
     press(&mut app, "4");
     // Typing on the vary row opens the chooser of givens with that search.
-    press(&mut app, "text:nozzle.cv");
+    press(&mut app, "text:nozzle.cfg");
     match app.popups.last() {
-        Some(Popup::Choose { search, .. }) => assert_eq!(search, "nozzle.cv"),
+        Some(Popup::Choose { search, .. }) => assert_eq!(search, "nozzle.cfg"),
         other => panic!("no chooser: {other:?}"),
     }
     press(&mut app, "Enter");
-    let cv = book(&app).given("process.nozzle.cv").unwrap().1.si();
+    let cv = book(&app).given("process.nozzle.cfg").unwrap().1.si();
     match app.popups.last() {
         Some(Popup::SweepForm { fields, sel }) => {
-            assert_eq!(fields[0], "process.nozzle.cv");
+            assert_eq!(fields[0], "process.nozzle.cfg");
             // From and to follow the path: 80 % of its value up to the
             // highest a velocity coefficient can be (1).
             let from: f64 = fields[1].parse().unwrap();
@@ -1072,7 +1072,7 @@ fn a_carpet_is_set_up_from_the_choosers_and_its_table_scrolls_sideways() {
     let (x, ys) = sw.rows.last().unwrap().clone();
     let mut e = app.engine.as_ref().unwrap().clone();
     e.set_si("process.compressor.pressure_ratio", 12.0).unwrap();
-    e.set_si("process.nozzle.cv", x).unwrap();
+    e.set_si("process.nozzle.cfg", x).unwrap();
     let f = e.value("summary.thrust_net").unwrap().unwrap();
     assert!((ys[0].unwrap() - f).abs() <= 1e-9 * f.abs());
     // The workbook is left alone.

@@ -183,7 +183,7 @@ fn build(path: &Path) -> Driver {
     d.set("recovery", "0.98");
     d.insert("19");
     d.kind("nozzle");
-    d.set("cv", "0.99");
+    d.set("cfg", "0.99");
     d.set("cd", "1");
 
     d.go("25");
@@ -212,7 +212,7 @@ fn build(path: &Path) -> Driver {
     d.set("efficiency", "0.91");
     d.insert("9");
     d.kind("nozzle");
-    d.set("cv", "0.99");
+    d.set("cfg", "0.99");
     d.set("cd", "1");
     d.press("ctrl-s");
     assert!(!d.app.modified, "saved: {:?}", d.app.status);

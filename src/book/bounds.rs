@@ -116,7 +116,7 @@ pub fn of(scope: &str, key: &str, q: Quantity) -> Option<Bound> {
             false,
             "an adiabatic duct cannot raise total pressure",
         ),
-        (_, "cv" | "cd", _) => b(
+        (_, "cfg" | "cd", _) => b(
             0.0,
             false,
             1.0,

@@ -667,9 +667,13 @@ pub struct Nozzle {
     pub shape: Shape,
     /// Exit mode.
     pub exit: Exit,
-    /// Velocity coefficient (actual over ideal exit velocity).
-    pub cv: Given,
-    /// Discharge coefficient (effective over geometric area).
+    /// Gross thrust coefficient: actual gross thrust over that of the ideal
+    /// (isentropic) nozzle of this shape at the same total state, flow and
+    /// pressure ratio.
+    pub cfg: Given,
+    /// Flow (discharge) coefficient: actual mass flow over the ideal mass
+    /// flow through the geometric area at the same total state and
+    /// pressure ratio (effective over geometric area).
     pub cd: Given,
 }
 

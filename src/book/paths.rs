@@ -224,7 +224,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
-pub const FIGURE_KEYS: [(&str, &str, Quantity); 39] = [
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 41] = [
     ("pressure_ratio", "pressure ratio", Quantity::Ratio),
     ("tt_ratio", "Tt ratio", Quantity::Ratio),
     ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
@@ -252,10 +252,12 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 39] = [
     ("mach_in", "inlet Mach", Quantity::Mach),
     ("mach_out", "exit Mach", Quantity::Mach),
     (
-        "v_actual",
-        "actual exit velocity (Cv x ideal)",
+        "v_effective",
+        "effective jet velocity (gross thrust / W)",
         Quantity::Velocity,
     ),
+    ("v_ideal", "ideal exit velocity", Quantity::Velocity),
+    ("thrust_ideal", "ideal gross thrust", Quantity::Force),
     ("beta", "wave angle", Quantity::Angle),
     ("max_deflection", "max deflection", Quantity::Angle),
     ("thrust", "gross thrust", Quantity::Force),

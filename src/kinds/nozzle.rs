@@ -23,11 +23,11 @@ impl ProcessKind for Nozzle {
     }
 
     givens!(this, f => {
-        let Nozzle { exit, cv, cd, .. } = this;
+        let Nozzle { exit, cfg, cd, .. } = this;
         if let Exit::Area(a) = exit {
             f("area", Quantity::Area, a);
         }
-        f("cv", Quantity::Ratio, cv);
+        f("cfg", Quantity::Ratio, cfg);
         f("cd", Quantity::Ratio, cd);
     });
 
@@ -42,7 +42,9 @@ impl ProcessKind for Nozzle {
             "throat_area",
             "required_area",
             "mach_out",
-            "v_actual",
+            "v_effective",
+            "v_ideal",
+            "thrust_ideal",
             "exit_p_ratio",
             "npr",
             "choked",
@@ -76,7 +78,7 @@ impl ProcessKind for Nozzle {
         Some(Kind::Nozzle(Nozzle {
             shape,
             exit,
-            cv: self.cv.clone(),
+            cfg: self.cfg.clone(),
             cd: self.cd.clone(),
         }))
     }
@@ -93,7 +95,7 @@ pub fn fresh() -> Vec<(&'static str, Kind)> {
         Kind::Nozzle(Nozzle {
             shape: Shape::Convergent,
             exit: Exit::Matched,
-            cv: Given::raw("0.98"),
+            cfg: Given::raw("0.98"),
             cd: Given::raw("0.98"),
         }),
     )]
@@ -107,7 +109,7 @@ fn nozzle(
     tr: &mut Tracer,
 ) -> Res<ProcessResult> {
     let g = gas(ctx, &i.comp)?;
-    let cv = ratio(&n.cv, "velocity coefficient", 0.5, 1.0)?;
+    let cfg = ratio(&n.cfg, "gross thrust coefficient", 0.5, 1.0)?;
     let cd = ratio(&n.cd, "discharge coefficient", 0.5, 1.0)?;
     let p_amb = ctx.ambient.flow.p;
     if i.pt <= p_amb {
@@ -187,40 +189,43 @@ fn nozzle(
             (e, a_eff)
         }
     };
-    let v = cv * exit.v;
-    let thrust = i.w * v + (exit.p - p_amb) * area_eff;
+    // The ideal nozzle of this shape at the same total state, flow and
+    // pressure ratio, then the gross thrust coefficient on its thrust.
+    let ideal = i.w * exit.v + (exit.p - p_amb) * area_eff;
+    let thrust = cfg * ideal;
     step!(
         tr,
-        "V exit",
-        v,
-        Velocity,
-        "V = Cv V_ideal, V_ideal = sqrt(2 (h(Tt) - h(T_exit)))",
-        [("Cv", cv, Ratio), ("V ideal", exit.v, Velocity)]
+        "ideal gross thrust",
+        ideal,
+        Force,
+        "F_ideal = W V_ideal + (p_exit - p_ambient) A_effective, V_ideal = sqrt(2 (h(Tt) - h(T_exit))), A_effective = Cd A",
+        [
+            ("W", i.w, MassFlow),
+            ("V ideal", exit.v, Velocity),
+            ("p exit", exit.p, Pressure),
+            ("p ambient", p_amb, Pressure),
+            ("A effective", area_eff, Area)
+        ]
     );
     step!(
         tr,
         "gross thrust",
         thrust,
         Force,
-        "F = W V + (p_exit - p_ambient) A_exit (A effective = Cd A)",
-        [
-            ("W", i.w, MassFlow),
-            ("V", v, Velocity),
-            ("p exit", exit.p, Pressure),
-            ("p ambient", p_amb, Pressure),
-            ("A effective", area_eff, Area)
-        ]
+        "F = Cfg F_ideal",
+        [("Cfg", cfg, Ratio), ("F ideal", ideal, Force)]
     );
     // The station shows the ideal (isentropic) exit state, consistent in
-    // itself; the velocity coefficient acts on the thrust and is reported
-    // as the actual exit velocity figure.
+    // itself, through the effective area, so rho V A = W there; the
+    // geometric area, the effective jet velocity F/W and the ideal thrust
+    // are figures.
     let out = StationValue {
         w: i.w,
         tt: i.tt,
         pt: i.pt,
         comp: i.comp,
         flow: Some(exit),
-        area: Some(area_eff / cd),
+        area: Some(area_eff),
     };
     if to.statics.is_some() {
         return Err(format!(
@@ -241,7 +246,9 @@ fn nozzle(
             i.w / (if choked { star.flux() } else { exit.flux() }) / cd,
         ),
         ("mach_out", exit.mach),
-        ("v_actual", v),
+        ("v_effective", thrust / i.w),
+        ("v_ideal", exit.v),
+        ("thrust_ideal", ideal),
         ("exit_p_ratio", exit.p / p_amb),
         ("npr", npr),
         ("choked", if choked { 1.0 } else { 0.0 }),
