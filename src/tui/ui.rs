@@ -282,7 +282,28 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             w
         }
     };
-    let room = inner_w.saturating_sub(NAME_W + VIA_W + 2);
+    // Station and process names as wide as they are (up to 20), where the
+    // screen has room for them beside at least five value columns.
+    let longest_station = e
+        .stations()
+        .iter()
+        .map(|s| s.name.chars().count())
+        .max()
+        .unwrap_or(0);
+    let longest_process = e
+        .book()
+        .processes
+        .iter()
+        .map(|p| p.name.chars().count())
+        .max()
+        .unwrap_or(0);
+    let want_name = (longest_station + 3).clamp(NAME_W, 20);
+    let want_via = (longest_process + 2).clamp(VIA_W, 22);
+    let spare = inner_w.saturating_sub(NAME_W + VIA_W + 2 + 5 * CELL_W);
+    let grow_name = (want_name - NAME_W).min(spare);
+    let grow_via = (want_via - VIA_W).min(spare - grow_name);
+    let (name_w, via_w) = (NAME_W + grow_name, VIA_W + grow_via);
+    let room = inner_w.saturating_sub(name_w + via_w + 2);
     let col = app.col.min(keys.len() - 1);
     // The first column shown: as far left as lets the selected one fit.
     let mut first = col;
@@ -303,11 +324,11 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
     let mut lines = Vec::new();
     let mut head = format!(
         "  {}{}",
-        fit_left("station", NAME_W - 2),
-        fit_left(" via", VIA_W)
+        fit_left("station", name_w - 2),
+        fit_left(" via", via_w)
     );
     // The legend of the given mark, where the unit row has room.
-    let mut unit_row = fit_left(&format!("  {GIVEN_MARK} given"), NAME_W + VIA_W);
+    let mut unit_row = fit_left(&format!("  {GIVEN_MARK} given"), name_w + via_w);
     for k in &shown {
         let (label, q) = key_meta(k);
         // Plain ASCII drawing: a label with other characters ("W√Tt/(A p)")
@@ -351,8 +372,8 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
             Span::styled(
                 format!(
                     "{}{}",
-                    fit_left(&s.name, NAME_W - 2),
-                    fit_left(&format!(" {}", p.name), VIA_W)
+                    fit_left(&s.name, name_w - 2),
+                    fit_left(&format!(" {}", p.name), via_w)
                 ),
                 if sel {
                     Style::default().add_modifier(Modifier::UNDERLINED)
