@@ -177,6 +177,19 @@ fn the_scan_list_jumps_and_filters_by_flag() {
         "{narrow}"
     );
     app.on_key(key(KeyCode::Up));
+    // End goes to the last scan, PgUp back by the rows shown (all five
+    // here, so to the first).
+    app.on_key(key(KeyCode::End));
+    assert!(matches!(
+        app.popups.last(),
+        Some(stationwise::tui::app::Popup::ScanList { sel: 4, .. })
+    ));
+    let _ = screen(&app);
+    app.on_key(key(KeyCode::PageUp));
+    assert!(matches!(
+        app.popups.last(),
+        Some(stationwise::tui::app::Popup::ScanList { sel: 0, .. })
+    ));
     app.on_key(key(KeyCode::Char('f')));
     let flagged = screen(&app);
     assert!(

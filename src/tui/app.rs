@@ -394,6 +394,8 @@ pub struct Derived {
     /// that scroll together and the furthest useful offset, so that a page
     /// key moves by what is shown and never past the end.
     pub scroll_room: std::cell::Cell<(u16, u16)>,
+    /// Rows the last frame's scan list showed (its page keys move by it).
+    pub list_page: std::cell::Cell<u16>,
     uncertainty: std::cell::RefCell<Option<UncertaintyEntry>>,
     walk: std::cell::RefCell<Option<WalkEntry>>,
 }
@@ -1113,13 +1115,26 @@ impl App {
                         sel = (sel + 1).min(n.saturating_sub(1));
                         self.popups.push(Popup::ScanList { sel, flagged });
                     }
+                    // Page keys move by the rows shown; Home and End go to
+                    // the first and last scan.
                     KeyCode::PageUp => {
-                        sel = sel.saturating_sub(10);
+                        let page = usize::from(self.derived.list_page.get().max(1));
+                        sel = sel.saturating_sub(page);
                         self.popups.push(Popup::ScanList { sel, flagged });
                     }
                     KeyCode::PageDown => {
-                        sel = (sel + 10).min(n.saturating_sub(1));
+                        let page = usize::from(self.derived.list_page.get().max(1));
+                        sel = (sel + page).min(n.saturating_sub(1));
                         self.popups.push(Popup::ScanList { sel, flagged });
+                    }
+                    KeyCode::Home => {
+                        self.popups.push(Popup::ScanList { sel: 0, flagged });
+                    }
+                    KeyCode::End => {
+                        self.popups.push(Popup::ScanList {
+                            sel: n.saturating_sub(1),
+                            flagged,
+                        });
                     }
                     KeyCode::Char('f') => {
                         // Keep the selected scan selected when it stays listed.

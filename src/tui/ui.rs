@@ -1938,11 +1938,14 @@ fn popup(f: &mut Frame, app: &App, th: &Theme, p: &Popup, area: Rect) {
                 detail.len() + 1
             };
             let help = hang(
-                "Up/Down choose, Enter shows, f flagged only, Esc closes; @ on screen",
+                "Up/Down, PgUp/PgDn, Home/End choose, Enter shows, f flagged only, Esc closes; @ on screen",
                 w + 2,
                 2,
             );
             let visible = (h as usize).saturating_sub(2 + help.len() + extra).max(1);
+            app.derived
+                .list_page
+                .set(visible.min(u16::MAX as usize) as u16);
             let skip = if *sel >= visible {
                 sel + 1 - visible
             } else {
