@@ -8,22 +8,10 @@
 mod common;
 
 use common::{copy_demo, key};
+use stationwise::reduce::Rng;
 use stationwise::tui::app::App;
 use stationwise::tui::render_buffer;
 use stationwise::tui::settings::Settings;
-
-/// SplitMix64: a small, seedable generator.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        z ^ (z >> 31)
-    }
-}
 
 const KEYS: &[&str] = &[
     "j",
@@ -88,7 +76,7 @@ fn random_keys_never_panic_on_any_demo() {
         .ok()
         .and_then(|s| s.parse().ok())
         .unwrap_or(20_261_203);
-    let mut rng = Rng(seed);
+    let mut rng = Rng::new(seed);
     for sheet in sheets {
         for run in 0..3 {
             let copy = copy_demo(sheet, &format!("keys-{run}"));
@@ -96,7 +84,7 @@ fn random_keys_never_panic_on_any_demo() {
             app.open(&copy.path).unwrap();
             let mut typed = Vec::new();
             for i in 0..400 {
-                let k = KEYS[(rng.next() % KEYS.len() as u64) as usize];
+                let k = KEYS[(rng.next_u64() % KEYS.len() as u64) as usize];
                 typed.push(k);
                 // q then y would quit; keep the session going.
                 if app.quit {

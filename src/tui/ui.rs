@@ -411,11 +411,7 @@ fn grid_view(f: &mut Frame, app: &App, th: &Theme, area: Rect) {
                 let t = u
                     .get(&format!("station.{}.{k}", s.name))
                     .map_or("-".to_string(), |u| {
-                        crate::report::sig(
-                            present::shown(u.u95, q, app.system)
-                                - present::shown(0.0, q, app.system),
-                            3,
-                        )
+                        crate::report::sig(span_of(u.u95, q, app.system), 3)
                     });
                 spans.push(Span::styled(cell(&t), th.dim()));
             }

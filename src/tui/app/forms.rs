@@ -18,6 +18,30 @@ impl App {
             .to_string()
     }
 
+    /// `low` to `high` times a given's value `v` (in either order for a
+    /// negative one) as texts in its display unit, kept inside the given's
+    /// physical range (a coefficient of 1 never goes above 1).
+    pub(super) fn range_text(
+        &self,
+        path: &str,
+        v: f64,
+        q: Quantity,
+        low: f64,
+        high: f64,
+    ) -> (String, String) {
+        let (mut lo, mut hi) = (low * v, high * v);
+        if hi < lo {
+            std::mem::swap(&mut lo, &mut hi);
+        }
+        let parts: Vec<&str> = path.split('.').collect();
+        let (scope, key) = (parts[0], parts.last().copied().unwrap_or(""));
+        if let Some(b) = crate::book::bounds::of(scope, key, q) {
+            lo = lo.max(b.low);
+            hi = hi.min(b.high);
+        }
+        (self.shown_text(lo, q), self.shown_text(hi, q))
+    }
+
     /// Every address that is a given (`givens`) or a derived value, as
     /// chooser items ("path = value now  (what it is)") and their paths.
     pub(super) fn address_items(&self, givens: bool) -> (Vec<String>, Vec<String>) {

@@ -227,20 +227,8 @@ impl App {
         let texts = addr.and_then(|a| {
             let v = a.value?;
             if row == 0 {
-                let parts: Vec<&str> = path.split('.').collect();
-                let (scope, key) = (parts[0], parts.last().copied().unwrap_or(""));
-                let (mut lo, mut hi) = (0.5 * v, 2.0 * v);
-                if hi < lo {
-                    std::mem::swap(&mut lo, &mut hi);
-                }
-                if let Some(b) = crate::book::bounds::of(scope, key, a.quantity) {
-                    lo = lo.max(b.low);
-                    hi = hi.min(b.high);
-                }
-                Some(vec![
-                    self.shown_text(lo, a.quantity),
-                    self.shown_text(hi, a.quantity),
-                ])
+                let (lo, hi) = self.range_text(&path, v, a.quantity, 0.5, 2.0);
+                Some(vec![lo, hi])
             } else {
                 Some(vec![self.shown_text(v, a.quantity)])
             }

@@ -34,18 +34,7 @@ impl App {
         let Some((q, g)) = self.book().and_then(|b| b.given(path)) else {
             return (String::new(), String::new());
         };
-        let si = g.si();
-        let (mut lo, mut hi) = (si * 0.8, si * 1.2);
-        if hi < lo {
-            std::mem::swap(&mut lo, &mut hi);
-        }
-        let parts: Vec<&str> = path.split('.').collect();
-        let (scope, key) = (parts[0], parts.last().copied().unwrap_or(""));
-        if let Some(b) = crate::book::bounds::of(scope, key, q) {
-            lo = lo.max(b.low);
-            hi = hi.min(b.high);
-        }
-        (self.shown_text(lo, q), self.shown_text(hi, q))
+        self.range_text(path, g.si(), q, 0.8, 1.2)
     }
 
     pub(super) fn open_sweep_form(&mut self) {
