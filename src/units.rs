@@ -791,6 +791,9 @@ pub fn all_units() -> impl Iterator<Item = &'static Unit> {
 /// degR". A bare number shows as "no unit".
 pub fn accepted(quantity: Quantity) -> String {
     units_for(quantity)
+        // g/kg is read for a humidity but not offered for every ratio (a
+        // nozzle coefficient in g/kg would only confuse).
+        .filter(|u| !std::ptr::eq(*u, &G_PER_KG))
         .map(|u| {
             if u.symbol.is_empty() {
                 "no unit"
@@ -1795,7 +1798,7 @@ mod tests {
     #[test]
     fn table_accepted_lists() {
         assert_eq!(accepted(Q::Temperature), "K, degC, degF, degR");
-        assert_eq!(accepted(Q::Ratio), "no unit, %, g/kg");
+        assert_eq!(accepted(Q::Ratio), "no unit, %");
         assert_eq!(accepted(Q::Mach), "no unit");
     }
 

@@ -171,7 +171,7 @@ pub fn of(scope: &str, key: &str, q: Quantity) -> Option<Bound> {
             0.2,
             true,
             true,
-            "specific humidity in kg of water per kg of moist air (saturated air at 50 degC holds about 0.08, from memory)",
+            "specific humidity in kg of water per kg of moist air, or g/kg (saturated air at 50 degC holds about 0.08, from memory)",
         ),
         (_, "hc", _) => b(
             0.0,
