@@ -300,6 +300,9 @@ pub fn explanation(
     for s in steps {
         step_lines(&s, system, &mut out);
     }
+    if let Some(n) = engine.process(&p.name).and_then(|r| r.note) {
+        out.push(format!("  note: {n}"));
+    }
     if let Some(v) = engine.station(station) {
         out.push("  values:".into());
         for (k, label, q) in STATION_KEYS {

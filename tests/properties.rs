@@ -654,11 +654,11 @@ proptest! {
         };
         let fuel = Fuel::new(hc).unwrap_or(Fuel::KEROSENE);
         // Composition fields are public: an unchecked one is a possible input.
-        let inlet = Composition { far: far_in, war, fuel };
-        let burner = combustion::Burner { fuel, lhv, efficiency: eta };
+        let inlet = Composition { far: far_in, war, fuel, ..Composition::dry_air() };
+        let burner = combustion::Burner { fuel, lhv, efficiency: eta, fuel_sensible: x * 1e3 };
         let _ = combustion::exit_temperature(&model, &inlet, tt_in, x, &burner);
         let _ = combustion::far_for_temperature(&model, &inlet, tt_in, x, &burner);
-        let _ = combustion::measured_efficiency(&model, &inlet, tt_in, x, far_in, fuel, lhv);
+        let _ = combustion::measured_efficiency(&model, &inlet, tt_in, x, far_in, &burner);
         let _ = combustion::sensible_energy(&model, &inlet, tt_in);
     }
 

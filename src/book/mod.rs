@@ -46,6 +46,11 @@ impl Given {
         })
     }
 
+    /// An unparsed zero (a default in the file format).
+    pub fn zero() -> Given {
+        Given::raw("0")
+    }
+
     /// An unparsed given (from a file, before [`Workbook::resolve`]).
     pub fn raw(text: &str) -> Given {
         Given {
@@ -427,6 +432,9 @@ pub struct Process {
 }
 
 /// Process kinds, each with its mode.
+// A workbook holds tens of processes, read far more than moved: the
+// combustor's optional fuel fields stay inline rather than boxed.
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub enum Kind {
@@ -529,8 +537,57 @@ pub struct Combustor {
     pub efficiency: Given,
     /// Fuel lower heating value.
     pub lhv: Given,
-    /// Fuel hydrogen-to-carbon molar ratio.
-    pub hc: Given,
+    /// Fuel hydrogen-to-carbon molar ratio of a hydrocarbon C H_n (a
+    /// kerosene-like 1.92 when neither this nor `fuel` is given).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hc: Option<Given>,
+    /// The fuel by its atoms per molecule (instead of `hc`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fuel: Option<FuelAtoms>,
+    /// The fuel's temperature where it enters (298.15 K when not given).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fuel_tt: Option<Given>,
+    /// The fuel's specific heat, for a fuel without its own polynomial
+    /// (hydrogen and methane have one); 2.0 kJ/(kg K) when not given.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fuel_cp: Option<Given>,
+    /// Exit composition: complete (frozen) products, or in chemical
+    /// equilibrium at the exit total state.
+    #[serde(default, skip_serializing_if = "Products::is_frozen")]
+    pub products: Products,
+}
+
+/// A fuel C_c H_h O_o N_n by its atoms per molecule.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FuelAtoms {
+    /// Carbon atoms.
+    pub c: Given,
+    /// Hydrogen atoms.
+    pub h: Given,
+    /// Oxygen atoms.
+    #[serde(default = "Given::zero")]
+    pub o: Given,
+    /// Nitrogen atoms.
+    #[serde(default = "Given::zero")]
+    pub n: Given,
+}
+
+/// How a burner's exit composition is found.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Products {
+    /// Complete lean combustion: CO2, H2O, N2 and the oxygen left over.
+    #[default]
+    Frozen,
+    /// Chemical equilibrium of twelve species at the exit total temperature
+    /// and pressure, frozen from there on.
+    Equilibrium,
+}
+
+impl Products {
+    fn is_frozen(&self) -> bool {
+        *self == Products::Frozen
+    }
 }
 
 /// Combustor modes.

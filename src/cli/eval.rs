@@ -77,6 +77,7 @@ pub fn to_json(engine: &Engine) -> serde_json::Value {
             "name": p.name,
             "kind": crate::kinds::of(&p.kind).name(),
             "figures": figs,
+            "note": engine.process(&p.name).and_then(|r| r.note),
         }));
     }
     // Each goal: what it varies and holds, the target, the value found,
@@ -237,6 +238,14 @@ pub fn text(engine: &Engine, system: UnitSystem, out: &mut dyn Write) -> std::io
                 l.label,
                 with_unit(l.value, l.quantity, system)
             )?;
+        }
+    }
+    let notes = engine.notes();
+    if !notes.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "notes")?;
+        for p in notes {
+            writeln!(out, "  {}: {}", p.place, p.message)?;
         }
     }
     let problems = engine.problems();

@@ -39,6 +39,9 @@ pub struct ProcessResult {
     pub fuel: f64,
     /// Fuel flow times heating value, W (combustors).
     pub heat_release: f64,
+    /// A caution on how the result was obtained (frozen products where
+    /// dissociation matters, say); shown with the process, not a problem.
+    pub note: Option<&'static str>,
 }
 
 impl ProcessResult {
@@ -55,6 +58,7 @@ impl ProcessResult {
             air_in: 0.0,
             fuel: 0.0,
             heat_release: 0.0,
+            note: None,
         }
     }
     /// A figure by key.

@@ -1593,6 +1593,24 @@ impl Engine {
         v
     }
 
+    /// Cautions on results that computed (not problems): each process's
+    /// note, such as frozen products where dissociation matters.
+    pub fn notes(&self) -> Vec<Problem> {
+        let mut v = Vec::new();
+        for &i in &self.graph.order {
+            if let Some(NodeOut::Done(r)) = &self.nodes[i]
+                && let Some(n) = r.note
+            {
+                let p = &self.book.processes[i];
+                v.push(Problem {
+                    place: format!("{} \"{}\"", crate::kinds::of(&p.kind).name(), p.name),
+                    message: n.to_string(),
+                });
+            }
+        }
+        v
+    }
+
     /// The first of [`Engine::problems`] as "place: message", built only
     /// when there is one (a sweep asks at every point).
     pub fn first_problem(&self) -> Option<String> {

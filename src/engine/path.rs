@@ -48,15 +48,7 @@ impl Engine {
                 if i == n {
                     return Some((sb, b.tt));
                 }
-                let comp = Composition {
-                    far: a.comp.far + t * (b.comp.far - a.comp.far),
-                    war: a.comp.war + t * (b.comp.war - a.comp.war),
-                    fuel: if b.comp.far > 0.0 {
-                        b.comp.fuel
-                    } else {
-                        a.comp.fuel
-                    },
-                };
+                let comp = Composition::mix(&b.comp, t, &a.comp, 1.0 - t);
                 let g = model.gas(&comp).ok()?;
                 let s = sa + t * (sb - sa);
                 let pt = (la + t * (lb - la)).exp();

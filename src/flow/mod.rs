@@ -114,6 +114,18 @@ pub enum FlowError {
         /// Last residual.
         residual: f64,
     },
+    /// A burner's exit temperature above what its fuel can reach.
+    #[error(
+        "exit total temperature {asked:.1} K is above what this fuel can reach: the adiabatic flame temperature at stoichiometric is {flame:.1} K ({products} products)"
+    )]
+    AboveFlame {
+        /// The exit total temperature asked for, K.
+        asked: f64,
+        /// The adiabatic flame temperature at the stoichiometric ratio, K.
+        flame: f64,
+        /// "frozen" or "equilibrium".
+        products: &'static str,
+    },
     /// An equation without a root in its physical range.
     #[error("{what}: no solution in the physical range")]
     NoSolution {

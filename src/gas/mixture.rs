@@ -70,7 +70,7 @@ impl Polynomial {
             + a[7]
     }
     #[inline]
-    fn phi_of(a: &[f64; 9], t: f64, ln_t: f64) -> f64 {
+    pub(crate) fn phi_of(a: &[f64; 9], t: f64, ln_t: f64) -> f64 {
         let ti = 1.0 / t;
         -0.5 * a[0] * ti * ti - a[1] * ti
             + a[2] * ln_t

@@ -18,12 +18,15 @@
 //! (formation included); combustion balances use sensible enthalpy
 //! `h(T) - h(298.15 K)` (see [`Gas::sensible_h`]).
 
+pub mod equilibrium;
 mod mixture;
 mod nasa9_data;
 mod species;
 
 pub use mixture::{Mixture, Polynomial};
-pub use species::{Composition, Fuel, MixtureBuilder, Species, stoichiometric_far};
+pub use species::{
+    Composition, ELEMENTS, Fuel, MixtureBuilder, SPECIES_COUNT, Species, stoichiometric_far,
+};
 
 use thiserror::Error;
 
@@ -335,7 +338,7 @@ impl GasModel {
 /// composition would build).
 fn cached_mixture(c: &Composition) -> Mixture {
     use std::cell::RefCell;
-    type Key = (u64, u64, u64);
+    type Key = [u64; 6 + species::SPECIES_COUNT];
     const SLOTS: usize = 16;
     /// A ring of recent mixtures: looked up by key, a miss overwrites the
     /// oldest slot (no entries are moved).
@@ -349,7 +352,15 @@ fn cached_mixture(c: &Composition) -> Mixture {
             RefCell::new(Ring { keys: [None; SLOTS], mixtures: Vec::new(), next: 0 })
         };
     }
-    let key = (c.far.to_bits(), c.war.to_bits(), c.fuel.hc().to_bits());
+    let mut key = [0u64; 6 + species::SPECIES_COUNT];
+    key[0] = c.far.to_bits();
+    key[1] = c.war.to_bits();
+    for (k, a) in c.fuel.atom_counts().iter().enumerate() {
+        key[2 + k] = a.to_bits();
+    }
+    for (k, x) in c.shift.iter().enumerate() {
+        key[6 + k] = x.to_bits();
+    }
     CACHE.with(|cell| {
         let mut ring = cell.borrow_mut();
         if let Some(pos) = ring.keys.iter().position(|k| *k == Some(key))

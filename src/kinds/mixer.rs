@@ -75,17 +75,7 @@ fn mixer(
     // Mixed composition per kg dry air, by dry-air flows.
     let air_a = a.w / a.comp.mass_per_kg_air();
     let air_b = b.w / b.comp.mass_per_kg_air();
-    let far = (a.comp.far * air_a + b.comp.far * air_b) / (air_a + air_b);
-    let war = (a.comp.war * air_a + b.comp.war * air_b) / (air_a + air_b);
-    let comp = Composition {
-        far,
-        war,
-        fuel: if a.comp.far > 0.0 {
-            a.comp.fuel
-        } else {
-            b.comp.fuel
-        },
-    };
+    let comp = Composition::mix(&a.comp, air_a, &b.comp, air_b);
     let g = gas(ctx, &comp)?;
     let w = a.w + b.w;
     let e = |gs: &Gas, t: f64| gs.sensible_h(t).map_err(|e| e.to_string());

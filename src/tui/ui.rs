@@ -821,6 +821,9 @@ fn summary(f: &mut Frame, app: &App, th: &Theme, area: Rect, unc: Option<(&UncMa
             )));
         }
     }
+    for n in e.notes() {
+        lines.push(Line::from(format!("note, {}: {}", n.place, n.message)));
+    }
     let problems = e.problems();
     if !problems.is_empty() {
         lines.push(Line::from(Span::styled(

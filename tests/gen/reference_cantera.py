@@ -48,6 +48,8 @@ Files written
 * tests/data/cantera_isentropic.json    isentropic static states vs Mach
 * tests/data/cantera_normal_shock.json  frozen normal-shock jump states
 * tests/data/cantera_turbojet.json      single-spool turbojet design point
+* tests/data/cantera_combustion.json    hydrogen and methane burnt to complete
+  products, kerosene-like fuel to equilibrium products (twelve species)
 """
 
 import json
@@ -80,7 +82,14 @@ R_U = ct.gas_constant
 T_REF = 298.15  # K, reference temperature of the sensible enthalpy
 
 SPECIES = ["N2", "O2", "Ar", "CO2", "H2O"]  # names as in nasa_gas.yaml
-RUST_NAMES = {"N2": "N2", "O2": "O2", "Ar": "AR", "CO2": "CO2", "H2O": "H2O"}
+RUST_NAMES = {"N2": "N2", "O2": "O2", "Ar": "AR", "CO2": "CO2", "H2O": "H2O",
+              "CO": "CO", "H2": "H2", "OH": "OH", "O": "O", "H": "H", "NO": "NO",
+              "N": "N", "CH4": "CH4"}
+# Species written to the Rust data: the five of air and lean products, the
+# seven minor species of equilibrium products, and methane (a fuel whose own
+# entry temperature is accounted by its polynomial; hydrogen is also one).
+MINOR = ["CO", "H2", "OH", "O", "H", "NO", "N"]
+RUST_SPECIES = SPECIES + MINOR + ["CH4"]
 
 # Dry air, U.S. Standard Atmosphere 1976 major constituents, normalised.
 AIR_RAW = {"N2": 0.780840, "O2": 0.209476, "Ar": 0.009340, "CO2": 0.000314}
@@ -105,6 +114,11 @@ GAS = ct.Solution(thermo="ideal-gas", species=[SP[n] for n in SPECIES])
 assert list(GAS.species_names) == SPECIES
 MW = {n: float(GAS.molecular_weights[i]) for i, n in enumerate(SPECIES)}
 P_REF_CANTERA = float(GAS.reference_pressure)
+# Every species written to the Rust data, in one Solution for its weights.
+GAS_ALL = ct.Solution(thermo="ideal-gas", species=[ALL_SPECIES[n] for n in SPECIES + [
+    "CO", "H2", "OH", "O", "H", "NO", "N", "CH4"]])
+MW_ALL = {n: float(GAS_ALL.molecular_weights[i]) for i, n in enumerate(GAS_ALL.species_names)}
+assert all(MW_ALL[n] == MW[n] for n in SPECIES)
 
 
 def bisect(fun, lo, hi):
@@ -215,7 +229,7 @@ def stoichiometric_far(n=N_HC_DEFAULT):
 # (a) species coefficients in 9-coefficient layout, checked against Cantera
 # --------------------------------------------------------------------------
 def nasa9_ranges(name):
-    th = SP[name].thermo
+    th = ALL_SPECIES[name].thermo
     if not isinstance(th, ct.NasaPoly2):
         raise RuntimeError(f"{name}: unexpected thermo type {type(th).__name__}")
     c = [float(v) for v in th.coeffs]
@@ -241,7 +255,7 @@ def check_against_yaml_text():
     with open(DATA_PATH) as fh:
         doc = YAML(typ="safe").load(fh)
     by_name = {s["name"]: s for s in doc["species"]}
-    for name in SPECIES:
+    for name in RUST_SPECIES:
         entry = by_name[name]["thermo"]
         assert entry["model"] == "NASA7", (name, entry["model"])
         _, _, _, low, high = nasa9_ranges(name)
@@ -270,8 +284,8 @@ def check_polynomials():
     298 K for the elements) and against |value| for cp and s.
     """
     worst = 0.0
-    for name in SPECIES:
-        th = SP[name].thermo
+    for name in RUST_SPECIES:
+        th = ALL_SPECIES[name].thermo
         _, t_mid, _, low, high = nasa9_ranges(name)
         cases = []
         for t in (300.0, 800.0, 1500.0, 3000.0):
@@ -364,14 +378,14 @@ def write_rust():
         "    pub high: [f64; 9],",
         "}",
     ]
-    for name in SPECIES:
+    for name in RUST_SPECIES:
         t_min, t_mid, t_max, low, high = nasa9_ranges(name)
         lines += [
             "",
-            f"/// {name}, molar mass {MW[name]!r} kg/kmol.",
+            f"/// {name}, molar mass {MW_ALL[name]!r} kg/kmol.",
             f"pub(crate) const {RUST_NAMES[name]}: SpeciesData = SpeciesData {{",
             f"    name: \"{name}\",",
-            f"    molar_mass: {rust_f64(MW[name])},",
+            f"    molar_mass: {rust_f64(MW_ALL[name])},",
             f"    t_min: {rust_f64(t_min)},",
             f"    t_mid: {rust_f64(t_mid)},",
             f"    t_max: {rust_f64(t_max)},",
@@ -685,6 +699,171 @@ def gen_turbojet():
     return obj
 
 
+# --------------------------------------------------------------------------
+# (c) combustion: fuels by atoms (frozen complete products) and equilibrium
+# --------------------------------------------------------------------------
+EQ_SPECIES = SPECIES + MINOR  # the twelve product species of an equilibrium
+# Cantera reads nasa_gas.yaml with a reference pressure of one atmosphere;
+# NASA TM-4513 states its standard state at 1 bar, so the equilibrium species
+# are rebuilt with the same coefficients and a 1e5 Pa reference pressure.
+P_STANDARD = 1.0e5
+
+
+def at_one_bar(sp):
+    th = sp.thermo
+    out = ct.Species(sp.name, sp.composition)
+    out.thermo = ct.NasaPoly2(th.min_temp, th.max_temp, P_STANDARD, th.coeffs)
+    return out
+
+
+GAS_EQ = ct.Solution(thermo="ideal-gas",
+                     species=[at_one_bar(ALL_SPECIES[n]) for n in EQ_SPECIES])
+assert GAS_EQ.reference_pressure == P_STANDARD
+W_O = ct.Element("O").weight
+W_N = ct.Element("N").weight
+
+
+def species_h(name, t):
+    """Absolute molar enthalpy of a species, J/kmol (Cantera's species thermo)."""
+    return float(ALL_SPECIES[name].thermo.h(t))
+
+
+def fuel_props(c, h, o, n):
+    m = c * W_C + h * W_H + o * W_O + n * W_N
+    nu_o2 = c + h / 4.0 - o / 2.0
+    return m, nu_o2
+
+
+def lhv_of(c, h, o, n, h_fuel_molar):
+    """Lower heating value per kg of fuel at 298.15 K, water as vapour."""
+    m, nu_o2 = fuel_props(c, h, o, n)
+    react = h_fuel_molar + nu_o2 * species_h("O2", T_REF)
+    prod = (c * species_h("CO2", T_REF) + h / 2.0 * species_h("H2O", T_REF)
+            + n / 2.0 * species_h("N2", T_REF))
+    return (react - prod) / m
+
+
+def complete_moles(far, atoms):
+    """kmol per kg dry air of complete lean products of a fuel by atoms."""
+    c, h, o, n = atoms
+    m, nu_o2 = fuel_props(c, h, o, n)
+    mol = {s: 0.0 for s in EQ_SPECIES}
+    for s in SPECIES:
+        mol[s] = AIR.x[s] / AIR.molar_mass
+    nf = far / m
+    mol["CO2"] += nf * c
+    mol["H2O"] += nf * h / 2.0
+    mol["N2"] += nf * n / 2.0
+    mol["O2"] -= nf * nu_o2
+    if mol["O2"] < 0.0:
+        raise ValueError("rich")
+    return mol
+
+
+def moles_h(mol, t):
+    """Absolute enthalpy of a set of species moles at t, J."""
+    return sum(k * species_h(s, t) for s, k in mol.items() if k != 0.0)
+
+
+def equilibrium_h_per_kg_air(far, atoms, t, p):
+    """Products of far in equilibrium at (t, p): absolute enthalpy per kg of
+    dry air and the equilibrium mole fractions."""
+    mol = complete_moles(far, atoms)
+    x = np.array([mol[s] for s in EQ_SPECIES])
+    GAS_EQ.TPX = t, p, x / x.sum()
+    GAS_EQ.equilibrate("TP", rtol=1e-14, max_steps=100000)
+    mass = 1.0 + far
+    return mass * float(GAS_EQ.enthalpy_mass), {
+        s: float(GAS_EQ.X[i]) for i, s in enumerate(EQ_SPECIES)}
+
+
+def stoich_far_of(atoms):
+    c, h, o, n = atoms
+    m, nu_o2 = fuel_props(c, h, o, n)
+    return AIR.x["O2"] / AIR.molar_mass / nu_o2 * m
+
+
+def gen_combustion():
+    air_h = lambda t: moles_h(complete_moles(0.0, (1, 0, 0, 0)), t)
+    cases = []
+    # Fuels that are species of the data file: their formation enthalpy and
+    # their own entry temperature come from their polynomials; the lower
+    # heating value follows from the same data.
+    for fuel, atoms, t_in, t_out, t_fuel in [
+        ("H2", (0.0, 2.0, 0.0, 0.0), 600.0, 1500.0, 298.15),
+        ("H2", (0.0, 2.0, 0.0, 0.0), 600.0, 1500.0, 400.0),
+        ("CH4", (1.0, 4.0, 0.0, 0.0), 600.0, 1500.0, 298.15),
+        ("CH4", (1.0, 4.0, 0.0, 0.0), 700.0, 1700.0, 350.0),
+    ]:
+        m, _ = fuel_props(*atoms)
+        hf = species_h(fuel, T_REF)
+        lhv = lhv_of(*atoms, hf)
+        hs_fuel = (species_h(fuel, t_fuel) - hf) / m
+        h_in = air_h(t_in)
+        h_fuel = species_h(fuel, t_fuel) / m
+
+        def res(f):
+            return moles_h(complete_moles(f, atoms), t_out) - h_in - f * h_fuel
+        far = bisect(res, 1e-6, stoich_far_of(atoms))
+        cases.append({
+            "fuel": fuel, "atoms": list(atoms), "products": "frozen",
+            "tt_in": t_in, "tt_out": t_out, "fuel_t": t_fuel,
+            "lhv": lhv, "fuel_sensible_h": hs_fuel, "far": far,
+            "far_stoich": stoich_far_of(atoms),
+        })
+    # Equilibrium products of a kerosene-like C H_1.92 given by its heating
+    # value: its formation enthalpy is the one that heating value implies.
+    atoms = (1.0, N_HC_DEFAULT, 0.0, 0.0)
+    lhv = 43.0e6
+    m, nu_o2 = fuel_props(*atoms)
+    h_fuel = lhv + (atoms[0] * species_h("CO2", T_REF) + atoms[1] / 2 * species_h("H2O", T_REF)
+                    - nu_o2 * species_h("O2", T_REF)) / m
+    t_in, p = 800.0, 2.5e6
+    h_in = air_h(t_in)
+    for t_out in (1800.0, 2000.0, 2200.0):
+        def res_eq(f):
+            return equilibrium_h_per_kg_air(f, atoms, t_out, p)[0] - h_in - f * h_fuel
+
+        def res_fr(f):
+            return moles_h(complete_moles(f, atoms), t_out) - h_in - f * h_fuel
+        far_eq = bisect(res_eq, 1e-6, stoich_far_of(atoms))
+        far_fr = bisect(res_fr, 1e-6, stoich_far_of(atoms))
+        _, x = equilibrium_h_per_kg_air(far_eq, atoms, t_out, p)
+        cases.append({
+            "fuel": "CH1.92", "atoms": list(atoms), "products": "equilibrium",
+            "tt_in": t_in, "tt_out": t_out, "pt": p, "fuel_t": T_REF,
+            "lhv": lhv, "far": far_eq, "far_frozen": far_fr,
+            "mole_fractions": x, "far_stoich": stoich_far_of(atoms),
+        })
+    # Adiabatic flame temperature at stoichiometric, equilibrium products.
+    fs = stoich_far_of(atoms)
+    t_ad = bisect(lambda t: equilibrium_h_per_kg_air(fs, atoms, t, p)[0] - h_in - fs * h_fuel,
+                  1500.0, 3500.0)
+    obj = header(
+        "Combustion of fuels given by their atoms C_c H_h O_o N_n per molecule, "
+        "1 kg of dry air plus f kg of fuel. Frozen: complete lean products (CO2 "
+        "+= c nf, H2O += h/2 nf, N2 += n/2 nf, O2 -= (c + h/4 - o/2) nf, nf = "
+        "f/M_fuel); energy: H_air(Tt_in) + f h_fuel(T_fuel) = H_products(Tt_out) "
+        "in absolute enthalpies of Cantera's species thermo; the fuel's own "
+        "polynomial gives its formation and sensible enthalpy; lhv is -dH of "
+        "complete combustion at 298.15 K with water as vapour, per kg fuel; "
+        "fuel_sensible_h = h_fuel(T_fuel) - h_fuel(298.15 K) per kg. "
+        "Equilibrium: the twelve species N2 O2 Ar CO2 H2O CO H2 OH O H NO N in "
+        "an ideal-gas Solution with the standard state at 1e5 Pa (TM-4513's; "
+        "Cantera would read the file at 101325 Pa), equilibrate('TP', "
+        "rtol=1e-14) at Tt_out and pt, "
+        "the fuel's formation enthalpy being the one its lhv implies with the "
+        "same species data. far solved by bisection to adjacent doubles; "
+        "far_frozen is the complete-products answer for the same fuel. "
+        "mole_fractions are Cantera's X at the solution.")
+    obj["cases"] = cases
+    obj["flame"] = {"atoms": list(atoms), "lhv": lhv, "tt_in": t_in, "pt": p,
+                    "far": fs, "t_adiabatic_equilibrium": t_ad}
+    obj["minor_species_molar_mass"] = {n: MW_ALL[n] for n in MINOR + ["CH4"]}
+    write_json("cantera_combustion.json", obj)
+    return obj
+
+
 def main():
     check_against_yaml_text()
     worst = check_polynomials()
@@ -693,6 +872,7 @@ def main():
     gen_isentropic()
     gen_normal_shock()
     tj = gen_turbojet()
+    gen_combustion()
     print(f"Cantera {ct.__version__}, numpy {np.__version__}, data {DATA_PATH}")
     print(f"R_universal {R_U!r}; polynomial check worst rel err {worst:.2e}")
     print("range jumps at T_mid (cp, h, s rel):",
