@@ -47,6 +47,11 @@ pub const TEMPLATES: &[(&str, &str, &str)] = &[
         include_str!("../sheets/turbojet.ron"),
     ),
     (
+        "cooled-turbojet",
+        "the turbojet with a customer bleed and turbine vane and rotor cooling air",
+        include_str!("../sheets/cooled-turbojet.ron"),
+    ),
+    (
         "turbofan",
         "two-spool separate-flow turbofan at Mach 0.8 cruise, two shaft balances",
         include_str!("../sheets/turbofan.ron"),

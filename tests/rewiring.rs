@@ -34,6 +34,9 @@ fn air_balance(book: &Workbook, e: &Engine) -> Option<(f64, f64)> {
         if let Kind::Mixer(m) = &p.kind {
             consumed.insert(m.secondary.clone());
         }
+        if let Kind::Turbine(t) = &p.kind {
+            consumed.extend(t.vane_cooling.iter().chain(&t.rotor_cooling).cloned());
+        }
     }
     let air = |name: &str| -> Option<f64> {
         let i = e.station_index(name)?;

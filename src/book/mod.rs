@@ -460,6 +460,9 @@ pub enum Kind {
     Split(Split),
     /// Constant-area mixer of `from` and a second stream.
     Mixer(Mixer),
+    /// Air taken off a stream at its total state (overboard, customer or
+    /// cooling air).
+    Bleed(Bleed),
     /// A trivial kind that exists only in unit tests, to show what adding
     /// a kind costs (see `kinds::probe`).
     #[cfg(test)]
@@ -631,6 +634,45 @@ pub struct Compressor {
     /// Shaft it is on.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub shaft: Option<String>,
+    /// Air bled between its stages.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub bleed: Option<StageBleed>,
+}
+
+/// An interstage bleed: a fraction of a compressor's inflow leaves at a
+/// stated fraction of its total-pressure rise and of its work.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct StageBleed {
+    /// The station the bled air goes to.
+    pub station: String,
+    /// Bled flow over the compressor's inflow.
+    pub fraction: Given,
+    /// Where it is taken: the fraction of the pressure rise and of the
+    /// specific work done on it (0 at entry, 1 at delivery).
+    pub position: Given,
+}
+
+/// Air taken off a stream at its total state.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Bleed {
+    /// How much.
+    pub amount: BleedAmount,
+    /// The station the bled air goes to: a turbine's cooling air, or a
+    /// station nothing takes from (overboard or customer bleed, counted in
+    /// the summary).
+    pub bled: String,
+}
+
+/// How much a bleed takes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum BleedAmount {
+    /// A fraction of the flow entering the bleed.
+    Fraction(Given),
+    /// A mass flow.
+    Flow(Given),
 }
 
 /// Compressor modes.
@@ -660,6 +702,13 @@ pub struct Turbine {
     /// Shaft it is on.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub shaft: Option<String>,
+    /// Station whose air cools the nozzle guide vanes: mixed in before the
+    /// rotor, so it does work.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub vane_cooling: Option<String>,
+    /// Station whose air cools the rotor: mixed in after the work.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rotor_cooling: Option<String>,
 }
 
 /// Turbine modes.

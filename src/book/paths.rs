@@ -195,7 +195,7 @@ pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Summary keys: key, label, quantity.
-pub const SUMMARY_KEYS: [(&str, &str, Quantity); 17] = [
+pub const SUMMARY_KEYS: [(&str, &str, Quantity); 18] = [
     ("thrust_gross", "gross thrust", Quantity::Force),
     ("ram_drag", "ram drag", Quantity::Force),
     ("thrust_net", "net thrust", Quantity::Force),
@@ -210,6 +210,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 17] = [
     ("eta_propulsive", "propulsive efficiency", Quantity::Ratio),
     ("eta_overall", "overall efficiency", Quantity::Ratio),
     ("air_flow", "air flow", Quantity::MassFlow),
+    ("bleed_overboard", "bleed overboard", Quantity::MassFlow),
     ("thrust_corrected", "corrected net thrust", Quantity::Force),
     ("fuel_corrected", "corrected fuel flow", Quantity::FuelFlow),
     ("test_mach", "test-section Mach", Quantity::Mach),
@@ -224,7 +225,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
-pub const FIGURE_KEYS: [(&str, &str, Quantity); 41] = [
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 48] = [
     ("pressure_ratio", "pressure ratio", Quantity::Ratio),
     ("tt_ratio", "Tt ratio", Quantity::Ratio),
     ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
@@ -268,6 +269,21 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 41] = [
     ("npr", "nozzle pressure ratio", Quantity::Ratio),
     ("choked", "choked (1 yes)", Quantity::Ratio),
     ("bypass_ratio", "bypass ratio", Quantity::Ratio),
+    ("bleed_flow", "bled flow", Quantity::MassFlow),
+    ("bleed_fraction", "bled fraction of inflow", Quantity::Ratio),
+    ("bleed_tt", "bled air Tt", Quantity::Temperature),
+    ("bleed_pt", "bled air pt", Quantity::Pressure),
+    ("vane_cooling_flow", "vane cooling flow", Quantity::MassFlow),
+    (
+        "rotor_cooling_flow",
+        "rotor cooling flow",
+        Quantity::MassFlow,
+    ),
+    (
+        "rotor_inlet_tt",
+        "rotor inlet Tt (after vane cooling)",
+        Quantity::Temperature,
+    ),
     ("p_ratio_streams", "p secondary/p primary", Quantity::Ratio),
     ("w", "mass flow", Quantity::MassFlow),
     ("max_4fl_d", "4fL*/D to choke", Quantity::Ratio),

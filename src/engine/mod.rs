@@ -122,6 +122,11 @@ struct Graph {
     outputs: Vec<Vec<usize>>,
     /// Some process is a mixer (its balance is checked after each solve).
     has_mixer: bool,
+    /// Per process: a bleed (or a compressor's interstage bleed) whose
+    /// bled station feeds nothing, so its flow leaves the engine.
+    overboard: Vec<bool>,
+    /// Some process bleeds air.
+    has_bleed: bool,
 }
 
 /// A goal's outcome.
@@ -199,6 +204,9 @@ pub struct Summary {
     pub thrust_corrected: Option<f64>,
     /// Fuel flow corrected to the reference: Wf / (delta sqrt(theta)).
     pub fuel_corrected: Option<f64>,
+    /// Air bled overboard or to customers (bleeds whose air no process
+    /// takes), kg/s.
+    pub bleed_overboard: Option<f64>,
 }
 
 impl Summary {
@@ -217,6 +225,7 @@ impl Summary {
             "air_flow" => self.air_flow,
             "thrust_corrected" => self.thrust_corrected,
             "fuel_corrected" => self.fuel_corrected,
+            "bleed_overboard" => self.bleed_overboard,
             "test_mach" => self.test_mach,
             "test_q" => self.test_q,
             "test_re" => self.test_re,
@@ -427,10 +436,18 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
             (None, true) => {}
         }
-        if let Some(second) = kind.second_input()
-            && let Some(s) = station(&whose, second, &mut errors)
-        {
-            g.inputs[i].push(s);
+        // Further streams in (a mixer's second stream, a turbine's cooling
+        // air), in the order the kind names them.
+        let mut more = Vec::new();
+        kind.visit_names(&mut |of, name| {
+            if of == crate::kinds::NameOf::Input {
+                more.push(name.to_string());
+            }
+        });
+        for second in &more {
+            if let Some(s) = station(&whose, second, &mut errors) {
+                g.inputs[i].push(s);
+            }
         }
         if let Some(s) = station(&whose, &p.to, &mut errors) {
             outputs[i].push(s);
@@ -487,6 +504,21 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
             }
         }
     }
+    g.has_bleed = book.processes.iter().any(|p| match &p.kind {
+        crate::book::Kind::Bleed(_) => true,
+        crate::book::Kind::Compressor(c) => c.bleed.is_some(),
+        _ => false,
+    });
+    g.overboard = outputs
+        .iter()
+        .zip(&book.processes)
+        .map(|(o, p)| {
+            matches!(
+                p.kind,
+                crate::book::Kind::Bleed(_) | crate::book::Kind::Compressor(_)
+            ) && o.get(1).is_some_and(|&s| consumers[s].is_empty())
+        })
+        .collect();
     for (s, c) in consumers.iter().enumerate() {
         if c.len() > 1 {
             let names: Vec<String> = c
@@ -923,15 +955,16 @@ impl Engine {
         self.summary = self.build_summary();
     }
 
-    /// Inputs of node `i` (at most two), or the name of the process that
+    /// Inputs of node `i` (at most three: the upstream station, a second
+    /// stream or two cooling flows), or the name of the process that
     /// blocks it.
-    fn node_inputs(&self, i: usize) -> Result<([Option<&StationValue>; 2], usize), String> {
-        let mut v = [None, None];
+    fn node_inputs(&self, i: usize) -> Result<([Option<&StationValue>; 3], usize), String> {
+        let mut v = [None, None, None];
         let ins = &self.graph.inputs[i];
         for (slot, &s) in v.iter_mut().zip(ins) {
             *slot = Some(self.station_value(s)?);
         }
-        Ok((v, ins.len().min(2)))
+        Ok((v, ins.len().min(3)))
     }
 
     fn station_value(&self, s: usize) -> Result<&StationValue, String> {
@@ -1009,14 +1042,19 @@ impl Engine {
             Ok(v) => v,
             Err(by) => return Err(NodeOut::Blocked(by)),
         };
+        let three;
         let pair;
         let one;
         let inputs: &[&StationValue] = match ins {
-            [Some(a), Some(b)] if n_in == 2 => {
+            [Some(a), Some(b), Some(c)] if n_in == 3 => {
+                three = [a, b, c];
+                &three
+            }
+            [Some(a), Some(b), _] if n_in == 2 => {
                 pair = [a, b];
                 &pair
             }
-            [Some(a), _] => {
+            [Some(a), _, _] => {
                 one = [a];
                 &one
             }
@@ -1062,9 +1100,15 @@ impl Engine {
         let mut ke_out = 0.0;
         let mut ke_in = 0.0;
         let mut nozzles = 0;
+        let mut overboard = 0.0;
         for (i, n) in self.nodes.iter().enumerate() {
             match n {
                 Some(NodeOut::Done(r)) => {
+                    if self.graph.overboard[i]
+                        && let Some(b) = &r.out2
+                    {
+                        overboard += b.w;
+                    }
                     gross += r.thrust;
                     ram += r.ram_drag;
                     fuel += r.fuel;
@@ -1086,6 +1130,9 @@ impl Engine {
             .filter_map(|sh| sh.offtake.as_ref().map(|g| g.si()))
             .sum();
         s.air_flow = Some(air);
+        if self.graph.has_bleed {
+            s.bleed_overboard = Some(overboard);
+        }
         s.sheet = if self.graph.freestream && nozzles > 0 {
             SheetKind::Engine
         } else {

@@ -24,7 +24,7 @@ impl ProcessKind for Compressor {
     }
 
     givens!(this, f => {
-        let Compressor { mode, .. } = this;
+        let Compressor { mode, bleed, .. } = this;
         if let Compression::Design {
             pressure_ratio,
             efficiency,
@@ -34,15 +34,27 @@ impl ProcessKind for Compressor {
             f("pressure_ratio", Quantity::Ratio, pressure_ratio);
             f("efficiency", Quantity::Ratio, efficiency);
         }
+        if let Some(StageBleed { fraction, position, .. }) = bleed {
+            f("bleed_fraction", Quantity::Ratio, fraction);
+            f("bleed_position", Quantity::Ratio, position);
+        }
     });
 
     fn figure_keys(&self) -> &'static [&'static str] {
-        STAGE_FIGURES
+        if self.bleed.is_some() {
+            STAGE_FIGURES_BLEED
+        } else {
+            STAGE_FIGURES
+        }
     }
 
     names!(this, f => {
-        if let Compressor { shaft: Some(s), .. } = this {
+        let Compressor { shaft, bleed, .. } = this;
+        if let Some(s) = shaft {
             f(NameOf::Shaft, s);
+        }
+        if let Some(StageBleed { station, .. }) = bleed {
+            f(NameOf::Output, station);
         }
     });
 
@@ -77,11 +89,16 @@ impl ProcessKind for Compressor {
                 },
             },
             shaft: self.shaft.clone(),
+            bleed: self.bleed.clone(),
         }))
     }
 
     fn run(&self, ctx: &Ctx, io: &Io, tr: &mut Tracer) -> Res<ProcessResult> {
-        compressor(ctx, &self.mode, io.input()?, io.to, tr)
+        let mut r = compressor(ctx, &self.mode, io.input()?, io.to, tr)?;
+        if let Some(b) = &self.bleed {
+            stage_bleed(ctx, b, io, &mut r, tr)?;
+        }
+        Ok(r)
     }
 }
 
@@ -97,6 +114,106 @@ pub(super) const STAGE_FIGURES: &[&str] = &[
     "wc_in",
     "nc",
 ];
+
+/// The same with an interstage bleed.
+const STAGE_FIGURES_BLEED: &[&str] = &[
+    "pressure_ratio",
+    "eta_isentropic",
+    "eta_polytropic",
+    "work",
+    "power",
+    "tt_ratio",
+    "tt_ideal",
+    "wc_in",
+    "nc",
+    "bleed_flow",
+    "bleed_fraction",
+    "bleed_tt",
+    "bleed_pt",
+];
+
+/// An interstage bleed: the machine is computed for its whole inflow (its
+/// pressure ratio and efficiency are those of the main path), then the
+/// bled air leaves with `position` of the specific work and of the
+/// total-pressure rise done on it: `h_b = h_in + x w`,
+/// `pt_b = pt_in + x (pt_out - pt_in)`. The exit carries the rest, and the
+/// power is `W_out w + W_b x w`.
+fn stage_bleed(
+    ctx: &Ctx,
+    b: &StageBleed,
+    io: &Io,
+    r: &mut ProcessResult,
+    tr: &mut Tracer,
+) -> Res<()> {
+    let i = io.input()?;
+    let f = ratio(&b.fraction, "interstage bleed fraction", 0.0, 1.0)?;
+    if f >= 1.0 {
+        return Err("an interstage bleed fraction of 1 leaves nothing for the exit".into());
+    }
+    let x = ratio(&b.position, "interstage bleed position", 0.0, 1.0)?;
+    let to2 = io
+        .to2
+        .ok_or_else(|| format!("bled station \"{}\" is missing", b.station))?;
+    let g = gas(ctx, &i.comp)?;
+    let work = figure(Some(r), "work").ok_or("the compressor's work is missing")?;
+    let h_in = g.h(i.tt).map_err(|e| e.to_string())?;
+    let tt_b = crate::gas::invert_h(&g, h_in + x * work, i.tt + x * (r.out.tt - i.tt))
+        .map_err(|e| e.to_string())?;
+    let pt_b = i.pt + x * (r.out.pt - i.pt);
+    let (wb, w_out) = (f * i.w, (1.0 - f) * i.w);
+    step!(
+        tr,
+        "bleed",
+        wb,
+        MassFlow,
+        "interstage bleed: W_b = f W_in at h_b = h_in + x w, pt_b = pt_in + x (pt_out - pt_in); W_out = W_in - W_b; power = W_out w + W_b x w",
+        [
+            ("f", f, Ratio),
+            ("x", x, Ratio),
+            ("Tt_b", tt_b, Temperature),
+            ("pt_b", pt_b, Pressure)
+        ]
+    );
+    let out = finish(
+        &g,
+        io.to,
+        w_out,
+        r.out.tt,
+        r.out.pt,
+        i.comp,
+        None,
+        "compressor",
+        &mut Tracer::off(),
+    )?;
+    let bled = finish(
+        &g,
+        to2,
+        wb,
+        tt_b,
+        pt_b,
+        i.comp,
+        None,
+        "compressor bleed",
+        &mut Tracer::off(),
+    )?;
+    r.out = out;
+    r.out2 = Some(Box::new(bled));
+    r.power = w_out * work + wb * x * work;
+    let mut figs = Figures::new();
+    for (k, v) in r.figures.iter() {
+        figs.push((k, if *k == "power" { r.power } else { *v }));
+    }
+    for x in [
+        ("bleed_flow", wb),
+        ("bleed_fraction", f),
+        ("bleed_tt", tt_b),
+        ("bleed_pt", pt_b),
+    ] {
+        figs.push(x);
+    }
+    r.figures = figs;
+    Ok(())
+}
 
 /// An efficiency started from the machine's figure on `basis`, when it
 /// is a real one (above 0, at most 1).
@@ -119,7 +236,11 @@ pub fn fresh() -> Vec<(&'static str, Kind)> {
     };
     vec![(
         "compressor",
-        Kind::Compressor(Compressor { mode, shaft: None }),
+        Kind::Compressor(Compressor {
+            mode,
+            shaft: None,
+            bleed: None,
+        }),
     )]
 }
 

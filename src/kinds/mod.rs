@@ -15,6 +15,7 @@
 //! kind is its own file here, its variant in [`Kind`] (the file format),
 //! and one line in the `registry!` list below.
 
+mod bleed;
 mod combustor;
 mod compressor;
 mod duct;
@@ -250,6 +251,7 @@ registry! {
     Entry => entry,
     Split => split,
     Mixer => mixer,
+    Bleed => bleed,
     #[cfg(test)] Probe => probe,
 }
 
@@ -282,8 +284,9 @@ pub fn figure(now: Option<&ProcessResult>, key: &str) -> Option<f64> {
 mod prelude {
     pub(crate) use super::{Io, NameOf, ProcessKind, Reads, figure, givens, names, seed};
     pub(crate) use crate::book::{
-        Basis, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit, Expansion, Given,
-        Heating, Kind, Mixer, Nozzle, Oblique, Shape, Split, Station, Turbine,
+        Basis, Bleed, BleedAmount, Burn, Combustor, Compression, Compressor, Duct, Entry, Exit,
+        Expansion, Given, Heating, Kind, Mixer, Nozzle, Oblique, Shape, Split, StageBleed, Station,
+        Turbine,
     };
     pub(crate) use crate::engine::StationValue;
     pub(crate) use crate::engine::compute::{

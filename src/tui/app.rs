@@ -115,6 +115,8 @@ pub enum TextFor {
     Insert(usize),
     /// Name of the new bypass station of a split into station (index).
     SplitBypass(usize),
+    /// The new station a bleed's air goes to, for the station at this row.
+    BleedStation(usize),
     /// The workbook's title.
     Title,
     /// The workbook's note.
@@ -1279,6 +1281,7 @@ impl App {
                 self.insert_station(i, &name)
             }
             TextFor::SplitBypass(row) => self.make_split(row, input.trim()),
+            TextFor::BleedStation(row) => self.make_bleed(row, input.trim()),
             TextFor::NewShaft(row) => self.new_shaft(row, input.trim()),
             TextFor::Title => {
                 if let Some(mut nb) = self.book().cloned() {

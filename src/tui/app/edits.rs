@@ -586,6 +586,18 @@ impl App {
                 });
                 return;
             }
+            Kind::Bleed(b) if b.bled.is_empty() => {
+                let row = self.row;
+                let suggest = format!("{}bl", nb.stations[row].name);
+                self.popups.push(Popup::Text {
+                    title: format!(
+                        "name of the new station for the bled air (a turbine's cooling air, or overboard when nothing takes it; Enter alone: {suggest})"
+                    ),
+                    input: Field::default(),
+                    purpose: TextFor::BleedStation(row),
+                });
+                return;
+            }
             Kind::Mixer(m) if m.secondary.is_empty() => {
                 let row = self.row;
                 let names = self.mixer_candidates(row);
@@ -648,6 +660,42 @@ impl App {
         self.commit(
             nb,
             &format!("process is now a split; its bypass goes to the new station {name}"),
+        );
+    }
+
+    /// Make the process into station `row` a bleed of 5 % whose air goes
+    /// to a new station `name`, listed after `row`.
+    pub(super) fn make_bleed(&mut self, row: usize, name: &str) {
+        let Some(e) = self.engine.as_ref() else {
+            return;
+        };
+        let Some(mut nb) = self.book().cloned() else {
+            return;
+        };
+        let name = if name.is_empty() {
+            format!("{}bl", nb.stations[row].name)
+        } else {
+            name.to_string()
+        };
+        if nb.stations.iter().any(|s| s.name == name) {
+            self.error(format!("station name \"{name}\" is already used"));
+            return;
+        }
+        let pi = e.producer_of(row);
+        nb.processes[pi].kind = Kind::Bleed(crate::book::Bleed {
+            amount: crate::book::BleedAmount::Fraction(Given::raw("0.05")),
+            bled: name.clone(),
+        });
+        self.sync_measured(&mut nb, pi);
+        nb.stations.insert(row + 1, Station::named(&name));
+        if let Err(es) = nb.resolve() {
+            self.error(crate::present::join(&es));
+            return;
+        }
+        nb.results = None;
+        self.commit(
+            nb,
+            &format!("process is now a bleed; its air goes to the new station {name}"),
         );
     }
 
