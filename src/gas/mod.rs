@@ -338,45 +338,47 @@ impl GasModel {
 /// composition would build).
 fn cached_mixture(c: &Composition) -> Mixture {
     use std::cell::RefCell;
-    type Key = [u64; 6 + species::SPECIES_COUNT];
     const SLOTS: usize = 16;
-    /// A ring of recent mixtures: looked up by key, a miss overwrites the
-    /// oldest slot (no entries are moved).
+    /// A ring of recent mixtures: looked up by the fuel-air ratio's bits,
+    /// then the whole composition; a miss overwrites the oldest slot (no
+    /// entries are moved).
     struct Ring {
-        keys: [Option<Key>; SLOTS],
+        prints: [u64; SLOTS],
+        comps: Vec<Composition>,
         mixtures: Vec<Mixture>,
         next: usize,
     }
     thread_local! {
         static CACHE: RefCell<Ring> = const {
-            RefCell::new(Ring { keys: [None; SLOTS], mixtures: Vec::new(), next: 0 })
+            RefCell::new(Ring {
+                prints: [u64::MAX; SLOTS],
+                comps: Vec::new(),
+                mixtures: Vec::new(),
+                next: 0,
+            })
         };
     }
-    let mut key = [0u64; 6 + species::SPECIES_COUNT];
-    key[0] = c.far.to_bits();
-    key[1] = c.war.to_bits();
-    for (k, a) in c.fuel.atom_counts().iter().enumerate() {
-        key[2 + k] = a.to_bits();
-    }
-    for (k, x) in c.shift.iter().enumerate() {
-        key[6 + k] = x.to_bits();
-    }
+    // Equal compositions build equal mixtures; a composition holding a NaN
+    // never equals itself and is simply rebuilt.
+    let print = c.far.to_bits();
     CACHE.with(|cell| {
         let mut ring = cell.borrow_mut();
-        if let Some(pos) = ring.keys.iter().position(|k| *k == Some(key))
-            && let Some(m) = ring.mixtures.get(pos)
-        {
-            return m.clone();
+        for pos in 0..ring.comps.len() {
+            if ring.prints[pos] == print && ring.comps[pos] == *c {
+                return ring.mixtures[pos].clone();
+            }
         }
         let m = c.mixture();
         let slot = ring.next;
         ring.next = (slot + 1) % SLOTS;
         if slot < ring.mixtures.len() {
             ring.mixtures[slot] = m.clone();
+            ring.comps[slot] = *c;
         } else {
             ring.mixtures.push(m.clone());
+            ring.comps.push(*c);
         }
-        ring.keys[slot] = Some(key);
+        ring.prints[slot] = print;
         m
     })
 }

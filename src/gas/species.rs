@@ -429,10 +429,10 @@ pub fn stoichiometric_far(fuel: Fuel) -> f64 {
     air[index(Species::O2)] * fuel.molar_mass() / fuel.oxygen_demand()
 }
 
-fn dry_air_kmol_per_kg() -> [f64; SPECIES_COUNT] {
+fn dry_air_kmol_per_kg() -> &'static [f64; SPECIES_COUNT] {
     // Computed once: every mixture and every burner trial starts from it.
     static N: std::sync::OnceLock<[f64; SPECIES_COUNT]> = std::sync::OnceLock::new();
-    *N.get_or_init(dry_air_kmol_per_kg_uncached)
+    N.get_or_init(dry_air_kmol_per_kg_uncached)
 }
 
 fn dry_air_kmol_per_kg_uncached() -> [f64; SPECIES_COUNT] {
@@ -581,7 +581,7 @@ impl Composition {
 
     /// Species kmol per kg of dry air.
     pub fn builder(&self) -> MixtureBuilder {
-        let mut kmol = dry_air_kmol_per_kg();
+        let mut kmol = *dry_air_kmol_per_kg();
         let nf = self.far / self.fuel.molar_mass();
         let per = self.fuel.products_per_kmol();
         for k in 0..SPECIES_COUNT {
