@@ -34,7 +34,7 @@ fn diff(a: &PathBuf, b: &PathBuf, extra: &[&str]) -> (String, i32) {
 }
 
 #[test]
-fn one_given_is_at_most_fifteen_lines_summary_first() {
+fn one_given_is_a_screenful_summary_first() {
     for (sheet, from, to) in [
         (
             "turbojet.ron",
@@ -52,7 +52,9 @@ fn one_given_is_at_most_fifteen_lines_summary_first() {
         let (text, code) = diff(&a, &b, &[]);
         assert_eq!(code, 2, "a difference exits 2");
         let lines: Vec<&str> = text.lines().collect();
-        assert!(lines.len() <= 15, "{sheet}: {} lines\n{text}", lines.len());
+        // A count line, the summary figures (at most twelve on an engine
+        // sheet), the given, one line for the rest: under a 24-line screen.
+        assert!(lines.len() <= 18, "{sheet}: {} lines\n{text}", lines.len());
         assert!(lines[0].starts_with("1 given changed"), "{text}");
         assert_eq!(lines[1], "summary figures", "{text}");
         let givens = lines.iter().position(|l| *l == "givens").unwrap();

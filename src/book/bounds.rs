@@ -181,7 +181,15 @@ pub fn of(scope: &str, key: &str, q: Quantity) -> Option<Bound> {
             true,
             "hydrogen atoms per carbon atom of the fuel",
         ),
-        (_, "lhv", _) => b(
+        (_, "reference_theta_exponent", _) => b(
+            0.0,
+            true,
+            1.0,
+            true,
+            true,
+            "the exponent of theta in a corrected fuel flow lies between 0 and 1 (0.5 is common practice)",
+        ),
+        (_, "lhv" | "reference_lhv", _) => b(
             0.0,
             false,
             1.5e8,

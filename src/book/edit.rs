@@ -89,6 +89,9 @@ impl Workbook {
                 }
             });
         }
+        if let Some(st) = self.corrections.as_mut().and_then(|c| c.station.as_mut()) {
+            fix(st);
+        }
         for s in self.stored_paths_mut() {
             rename_in_path(s, Scope::Station, old, new);
         }

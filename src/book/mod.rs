@@ -221,6 +221,9 @@ pub struct Workbook {
     /// Channel map: which scan columns feed which givens (test-data reduction).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub channels: Option<Channels>,
+    /// How corrected (standard-day) figures are formed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub corrections: Option<Corrections>,
     /// Store derived results in the file on save.
     #[serde(default, skip_serializing_if = "is_false")]
     pub keep_results: bool,
@@ -274,6 +277,26 @@ pub struct Channel {
     /// Random standard uncertainty (of the averaged value), same forms.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub random: Option<String>,
+}
+
+/// How corrected figures are formed: theta = Tt / T_ref and delta =
+/// pt / p_ref at a reference station.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Corrections {
+    /// The station whose total state gives theta and delta (by default the
+    /// engine face, the inflow of the first compressor; without one, the
+    /// first entry's exit, the free-stream total).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub station: Option<String>,
+    /// Exponent of theta in the corrected fuel flow Wf / (delta theta^x)
+    /// (0.5 when not given).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub theta_exponent: Option<Given>,
+    /// Heating value the corrected fuel flow is referred to: the fuel flow
+    /// is scaled by LHV_burnt / LHV_reference (not referred when absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub lhv: Option<Given>,
 }
 
 /// Reference condition for standard-day corrections.
@@ -1085,6 +1108,14 @@ macro_rules! walk_givens {
                 Quantity::Pressure,
                 & $($m)* r.pressure,
             );
+        }
+        if let Some(c) = & $($m)* book.corrections {
+            if let Some(x) = & $($m)* c.theta_exponent {
+                g("ambient", "", "reference_theta_exponent", Quantity::Ratio, x);
+            }
+            if let Some(x) = & $($m)* c.lhv {
+                g("ambient", "", "reference_lhv", Quantity::SpecificEnergy, x);
+            }
         }
         if let Some(h) = & $($m)* book.ambient.humidity {
             g("ambient", "", "humidity", Quantity::Ratio, h);

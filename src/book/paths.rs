@@ -195,7 +195,7 @@ pub const STATION_KEYS: [(&str, &str, Quantity); 17] = [
 ];
 
 /// Summary keys: key, label, quantity.
-pub const SUMMARY_KEYS: [(&str, &str, Quantity); 18] = [
+pub const SUMMARY_KEYS: [(&str, &str, Quantity); 19] = [
     ("thrust_gross", "gross thrust", Quantity::Force),
     ("ram_drag", "ram drag", Quantity::Force),
     ("thrust_net", "net thrust", Quantity::Force),
@@ -213,6 +213,11 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 18] = [
     ("bleed_overboard", "bleed overboard", Quantity::MassFlow),
     ("thrust_corrected", "corrected net thrust", Quantity::Force),
     ("fuel_corrected", "corrected fuel flow", Quantity::FuelFlow),
+    (
+        "egt_corrected",
+        "corrected exhaust Tt",
+        Quantity::Temperature,
+    ),
     ("test_mach", "test-section Mach", Quantity::Mach),
     ("test_q", "test-section q", Quantity::PressureDifference),
     ("test_re", "test-section Re per length", Quantity::PerLength),
@@ -225,7 +230,7 @@ pub const SUMMARY_KEYS: [(&str, &str, Quantity); 18] = [
 ];
 
 /// Process figure keys: key, label, quantity (a process reports a subset).
-pub const FIGURE_KEYS: [(&str, &str, Quantity); 48] = [
+pub const FIGURE_KEYS: [(&str, &str, Quantity); 49] = [
     ("pressure_ratio", "pressure ratio", Quantity::Ratio),
     ("tt_ratio", "Tt ratio", Quantity::Ratio),
     ("eta_isentropic", "isentropic efficiency", Quantity::Ratio),
@@ -285,6 +290,11 @@ pub const FIGURE_KEYS: [(&str, &str, Quantity); 48] = [
         Quantity::Temperature,
     ),
     ("p_ratio_streams", "p secondary/p primary", Quantity::Ratio),
+    (
+        "air_ratio_streams",
+        "air secondary/primary (fuel excluded)",
+        Quantity::Ratio,
+    ),
     ("w", "mass flow", Quantity::MassFlow),
     ("max_4fl_d", "4fL*/D to choke", Quantity::Ratio),
     ("imbalance", "shaft imbalance", Quantity::Power),

@@ -117,6 +117,10 @@ struct Graph {
     discharges: Vec<bool>,
     /// The first entry in evaluation order (the inlet of corrections).
     first_entry: Option<usize>,
+    /// The station whose totals give theta and delta of corrected figures.
+    reference_station: Option<usize>,
+    /// The exit of the last turbine in flow order (corrected exhaust Tt).
+    exhaust_station: Option<usize>,
     to_index: Vec<usize>,
     /// Output stations of each process: `to`, then a second stream.
     outputs: Vec<Vec<usize>>,
@@ -199,11 +203,14 @@ pub struct Summary {
     pub eta_overall: Option<f64>,
     /// Air entering, kg/s.
     pub air_flow: Option<f64>,
-    /// Net thrust corrected to the reference: F / delta, delta from the
-    /// first entry's total pressure.
+    /// Net thrust corrected to the reference: F / delta, delta at the
+    /// reference station (the engine face unless stated).
     pub thrust_corrected: Option<f64>,
-    /// Fuel flow corrected to the reference: Wf / (delta sqrt(theta)).
+    /// Fuel flow corrected to the reference: Wf (LHV / LHV_ref) / (delta
+    /// theta^x), x 0.5 unless stated.
     pub fuel_corrected: Option<f64>,
+    /// Exhaust total temperature (the last turbine's exit) over theta, K.
+    pub egt_corrected: Option<f64>,
     /// Air bled overboard or to customers (bleeds whose air no process
     /// takes), kg/s.
     pub bleed_overboard: Option<f64>,
@@ -225,6 +232,7 @@ impl Summary {
             "air_flow" => self.air_flow,
             "thrust_corrected" => self.thrust_corrected,
             "fuel_corrected" => self.fuel_corrected,
+            "egt_corrected" => self.egt_corrected,
             "bleed_overboard" => self.bleed_overboard,
             "test_mach" => self.test_mach,
             "test_q" => self.test_q,
@@ -232,6 +240,28 @@ impl Summary {
             "start_pt_ratio" => self.start_pt_ratio,
             "start_throat_ratio" => self.start_throat_ratio,
             _ => None,
+        }
+    }
+}
+
+/// The state corrected figures are formed from.
+struct CorrectionState {
+    station: String,
+    tt: f64,
+    pt: f64,
+    theta: f64,
+    delta: f64,
+    exponent: f64,
+    lhv_ref: Option<f64>,
+}
+
+impl CorrectionState {
+    /// The factor referring a fuel flow of heating value `lhv` to the
+    /// reference heating value (1 without one).
+    fn lhv_ratio(&self, lhv: f64) -> f64 {
+        match self.lhv_ref {
+            Some(r) if lhv.is_finite() => lhv / r,
+            _ => 1.0,
         }
     }
 }
@@ -621,6 +651,33 @@ fn compile(book: &Workbook) -> Result<Graph, Vec<BookError>> {
         .iter()
         .copied()
         .find(|&i| crate::kinds::of(&book.processes[i].kind).is_entry());
+    // Corrections: a stated station, else the engine face (what the first
+    // compressor takes in), else the first entry's exit.
+    let stated = book.corrections.as_ref().and_then(|c| c.station.as_ref());
+    g.reference_station = match stated {
+        Some(name) => match g.station_index.get(name) {
+            Some(&k) => Some(k),
+            None => {
+                return Err(vec![BookError::Unknown {
+                    whose: "the corrections".into(),
+                    what: "station",
+                    name: name.clone(),
+                }]);
+            }
+        },
+        None => g
+            .order
+            .iter()
+            .find(|&&i| matches!(book.processes[i].kind, crate::book::Kind::Compressor(_)))
+            .and_then(|&i| g.inputs[i].first().copied())
+            .or_else(|| g.first_entry.map(|i| g.to_index[i])),
+    };
+    g.exhaust_station = g
+        .order
+        .iter()
+        .rev()
+        .find(|&&i| matches!(book.processes[i].kind, crate::book::Kind::Turbine(_)))
+        .map(|&i| g.to_index[i]);
     g.has_mixer = book
         .processes
         .iter()
@@ -1152,17 +1209,18 @@ impl Engine {
             return s;
         }
         s.fuel = Some(fuel);
-        // Corrections use the totals of the first entry (the inlet).
-        let inlet = self.graph.first_entry.and_then(|i| match &self.nodes[i] {
-            Some(NodeOut::Done(r)) => Some((r.out.tt, r.out.pt)),
-            _ => None,
-        });
-        let (t_ref, p_ref) = self.reference();
-        let corr = inlet.map(|(tt, pt)| ((tt / t_ref), (pt / p_ref)));
-        if let Some((theta, delta)) = corr
-            && fuel > 0.0
-        {
-            s.fuel_corrected = Some(fuel / (delta * theta.sqrt()));
+        // Corrections use the totals of the reference station.
+        let corr = self.correction_state().map(|c| (c.theta, c.delta));
+        if let Some(c) = self.correction_state() {
+            if fuel > 0.0 {
+                s.fuel_corrected =
+                    Some(fuel * c.lhv_ratio(heat / fuel) / (c.delta * c.theta.powf(c.exponent)));
+            }
+            if let Some(k) = self.graph.exhaust_station
+                && let Ok(v) = self.station_value(k)
+            {
+                s.egt_corrected = Some(v.tt / c.theta);
+            }
         }
         if nozzles > 0 {
             let net = gross - ram;
@@ -1326,41 +1384,76 @@ impl Engine {
                 ],
             );
             let (t_ref, p_ref) = self.reference();
-            let inlet = self.graph.first_entry.and_then(|i| match &self.nodes[i] {
-                Some(NodeOut::Done(r)) => {
-                    Some((self.book.processes[i].to.clone(), r.out.tt, r.out.pt))
-                }
-                _ => None,
-            });
-            if let Some((st, tt, pt)) = inlet {
+            if let Some(c) = self.correction_state() {
+                let st = &c.station;
+                let how = if self
+                    .book
+                    .corrections
+                    .as_ref()
+                    .is_some_and(|c| c.station.is_some())
+                {
+                    "the stated reference station"
+                } else if self.graph.first_entry.is_some_and(|i| {
+                    self.graph.to_index[i] == self.graph.reference_station.unwrap_or(usize::MAX)
+                }) {
+                    "the first entry's exit"
+                } else {
+                    "the engine face, the first compressor's inflow"
+                };
                 push(
                     "corrected net thrust",
                     s.thrust_corrected,
                     Q::Force,
-                    format!(
-                        "F_net / delta, delta = pt / p_ref with pt of station {st} (the first entry's exit)"
-                    ),
+                    format!("F_net / delta, delta = pt / p_ref with pt of station {st} ({how})"),
                     vec![
                         ("F_net".into(), net, Q::Force),
-                        (format!("pt{st}"), pt, Q::Pressure),
+                        (format!("pt{st}"), c.pt, Q::Pressure),
                         ("p_ref".into(), p_ref, Q::Pressure),
                     ],
                 );
+                let lhv = if wf > 0.0 { heat / wf } else { f64::NAN };
+                let mut inputs = vec![
+                    ("Wf".into(), wf, Q::FuelFlow),
+                    (format!("Tt{st}"), c.tt, Q::Temperature),
+                    (format!("pt{st}"), c.pt, Q::Pressure),
+                    ("T_ref".into(), t_ref, Q::Temperature),
+                    ("p_ref".into(), p_ref, Q::Pressure),
+                    ("x".into(), c.exponent, Q::Ratio),
+                ];
+                let referral = match c.lhv_ref {
+                    Some(r) => {
+                        inputs.push(("LHV burnt".into(), lhv, Q::SpecificEnergy));
+                        inputs.push(("LHV_ref".into(), r, Q::SpecificEnergy));
+                        " (LHV burnt / LHV_ref)"
+                    }
+                    None => "",
+                };
                 push(
                     "corrected fuel flow",
                     s.fuel_corrected,
                     Q::FuelFlow,
                     format!(
-                        "Wf / (delta sqrt(theta)), theta = Tt / T_ref and delta = pt / p_ref of station {st}"
+                        "Wf{referral} / (delta theta^x), theta = Tt / T_ref and delta = pt / p_ref of station {st} ({how})"
                     ),
-                    vec![
-                        ("Wf".into(), wf, Q::FuelFlow),
-                        (format!("Tt{st}"), tt, Q::Temperature),
-                        (format!("pt{st}"), pt, Q::Pressure),
-                        ("T_ref".into(), t_ref, Q::Temperature),
-                        ("p_ref".into(), p_ref, Q::Pressure),
-                    ],
+                    inputs,
                 );
+                if let Some(k) = self.graph.exhaust_station {
+                    let ex = &self.book.stations[k].name;
+                    let tt = self.station_value(k).map_or(f64::NAN, |v| v.tt);
+                    push(
+                        "corrected exhaust Tt",
+                        s.egt_corrected,
+                        Q::Temperature,
+                        format!(
+                            "Tt{ex} / theta, station {ex} the last turbine's exit, theta = Tt{st} / T_ref"
+                        ),
+                        vec![
+                            (format!("Tt{ex}"), tt, Q::Temperature),
+                            (format!("Tt{st}"), c.tt, Q::Temperature),
+                            ("T_ref".into(), t_ref, Q::Temperature),
+                        ],
+                    );
+                }
             }
         }
         if let Some(i) = s.test_station
@@ -1731,6 +1824,26 @@ impl Engine {
                 atmosphere::SEA_LEVEL_PRESSURE_PA,
             ),
         }
+    }
+
+    /// Theta, delta and the settings of corrected figures, where the
+    /// reference station has computed.
+    fn correction_state(&self) -> Option<CorrectionState> {
+        let k = self.graph.reference_station?;
+        let v = self.station_value(k).ok()?;
+        let (t_ref, p_ref) = self.reference();
+        let c = self.book.corrections.as_ref();
+        Some(CorrectionState {
+            station: self.book.stations[k].name.clone(),
+            tt: v.tt,
+            pt: v.pt,
+            theta: v.tt / t_ref,
+            delta: v.pt / p_ref,
+            exponent: c
+                .and_then(|c| c.theta_exponent.as_ref())
+                .map_or(0.5, |g| g.si()),
+            lhv_ref: c.and_then(|c| c.lhv.as_ref()).map(|g| g.si()),
+        })
     }
 
     /// The summary.

@@ -24,7 +24,12 @@ impl ProcessKind for Mixer {
     }
 
     fn figure_keys(&self) -> &'static [&'static str] {
-        &["p_ratio_streams", "bypass_ratio", "mach_out", "exit_tt"]
+        &[
+            "p_ratio_streams",
+            "air_ratio_streams",
+            "mach_out",
+            "exit_tt",
+        ]
     }
 
     names!(this, f => {
@@ -115,7 +120,9 @@ fn mixer(
     let mut r = ProcessResult::new(st);
     r.figures = Figures::of(&[
         ("p_ratio_streams", sb.p / sa.p),
-        ("bypass_ratio", b.w / a.w),
+        // Dry air over dry air: the fuel burnt in either stream is not a
+        // bypass flow.
+        ("air_ratio_streams", air_b / air_a),
         ("mach_out", out.mach),
         ("exit_tt", tt),
     ]);
